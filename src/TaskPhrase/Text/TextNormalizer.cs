@@ -1,0 +1,92 @@
+using System.Globalization;
+using System.Text;
+
+namespace TaskPhrase.Text;
+
+/// <summary>
+/// Normalises user text the same way everywhere in TaskPhrase (step 1 of the decision procedure):
+/// Unicode NFKC, control and format characters removed, white space collapsed and trimmed.
+/// </summary>
+/// <remarks>Pure and thread-safe. <see cref="Normalize"/> is idempotent.</remarks>
+public static class TextNormalizer
+{
+    /// <summary>Returns the normalised form of <paramref name="text"/>.</summary>
+    /// <param name="text">Any text; lone surrogates are replaced by U+FFFD and then dropped.</param>
+    /// <exception cref="ArgumentNullException"><paramref name="text"/> is null.</exception>
+    public static string Normalize(string text)
+    {
+        ArgumentNullException.ThrowIfNull(text);
+        if (text.Length == 0) return text;
+        string result = NormalizeOnce(text);
+        // Filtering can expose a new NFKC composition (a combining mark after a removed format char);
+        // repeating until stable keeps the function idempotent. Converges in one or two rounds.
+        for (int i = 0; i < 4; i++)
+        {
+            string again = NormalizeOnce(result);
+            if (again == result) break;
+            result = again;
+        }
+        return result;
+    }
+
+    private static string NormalizeOnce(string text)
+    {
+        string safe = ReplaceLoneSurrogates(text);
+        string nfkc = safe.IsNormalized(NormalizationForm.FormKC) ? safe : safe.Normalize(NormalizationForm.FormKC);
+        var sb = new StringBuilder(nfkc.Length);
+        bool pendingSpace = false;
+        foreach (var rune in nfkc.EnumerateRunes())
+        {
+            var category = Rune.GetUnicodeCategory(rune);
+            if (Rune.IsWhiteSpace(rune) || category is UnicodeCategory.LineSeparator or UnicodeCategory.ParagraphSeparator or UnicodeCategory.SpaceSeparator)
+            {
+                pendingSpace = sb.Length > 0;
+                continue;
+            }
+            if (category is UnicodeCategory.Control or UnicodeCategory.Format or UnicodeCategory.PrivateUse
+                or UnicodeCategory.OtherNotAssigned or UnicodeCategory.Surrogate
+                || rune.Value == 0xFFFD)
+            {
+                continue;
+            }
+            if (pendingSpace) { sb.Append(' '); pendingSpace = false; }
+            sb.Append(rune.ToString());
+        }
+        return sb.ToString();
+    }
+
+    /// <summary>
+    /// The key used for exact matching of an utterance against approved phrases: the normalised text,
+    /// lower-cased (invariant culture), with leading and trailing punctuation and symbols removed.
+    /// </summary>
+    /// <exception cref="ArgumentNullException"><paramref name="text"/> is null.</exception>
+    public static string MatchKey(string text)
+    {
+        string n = Normalize(text).ToLowerInvariant();
+        int start = 0, end = n.Length;
+        while (start < end && IsEdge(n[start])) start++;
+        while (end > start && IsEdge(n[end - 1])) end--;
+        return n[start..end];
+
+        static bool IsEdge(char c) => char.IsPunctuation(c) || char.IsSymbol(c) || c == ' ';
+    }
+
+    private static string ReplaceLoneSurrogates(string text)
+    {
+        int i = 0;
+        for (; i < text.Length; i++)
+        {
+            char c = text[i];
+            if (char.IsHighSurrogate(c) && i + 1 < text.Length && char.IsLowSurrogate(text[i + 1])) { i++; continue; }
+            if (char.IsSurrogate(c)) break;
+        }
+        if (i >= text.Length) return text;
+        var chars = text.ToCharArray();
+        for (int j = 0; j < chars.Length; j++)
+        {
+            if (char.IsHighSurrogate(chars[j]) && j + 1 < chars.Length && char.IsLowSurrogate(chars[j + 1])) { j++; continue; }
+            if (char.IsSurrogate(chars[j])) chars[j] = '\uFFFD';
+        }
+        return new string(chars);
+    }
+}

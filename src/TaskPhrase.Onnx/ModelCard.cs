@@ -1,0 +1,61 @@
+using System.Text.Json;
+using System.Text.Json.Serialization;
+
+namespace TaskPhrase.Onnx;
+
+/// <summary>
+/// The small JSON card (<c>model.json</c>) that describes a model directory: id, pooling,
+/// maximum tokens, dimensions. Immutable.
+/// </summary>
+public sealed record ModelCard
+{
+    /// <summary>Model id, e.g. <c>all-minilm-l6-v2</c>.</summary>
+    [JsonPropertyName("id")] public required string Id { get; init; }
+
+    /// <summary><c>mean</c> (masked mean over tokens) or <c>cls</c> (first token).</summary>
+    [JsonPropertyName("pooling")] public string Pooling { get; init; } = "mean";
+
+    /// <summary>Longest input in tokens, special tokens included.</summary>
+    [JsonPropertyName("max_tokens")] public int MaxTokens { get; init; } = 256;
+
+    /// <summary>Embedding width.</summary>
+    [JsonPropertyName("dimensions")] public int Dimensions { get; init; } = 384;
+
+    /// <summary>True for uncased vocabularies: input is lower-cased before WordPiece.</summary>
+    [JsonPropertyName("lowercase")] public bool Lowercase { get; init; } = true;
+
+    /// <summary>Expected SHA-256 of model.onnx, if recorded; checked at load when present.</summary>
+    [JsonPropertyName("model_sha256")] public string? ModelSha256 { get; init; }
+
+    /// <summary>Free-form provenance.</summary>
+    [JsonPropertyName("source")] public string? Source { get; init; }
+
+    /// <summary>Licence of the model.</summary>
+    [JsonPropertyName("licence")] public string? Licence { get; init; }
+
+    /// <summary>Reads and validates a card.</summary>
+    /// <exception cref="InvalidDataException">The card is missing, malformed or has out-of-range values; the message names the file.</exception>
+    public static ModelCard Load(string path)
+    {
+        if (!File.Exists(path))
+            throw new InvalidDataException($"{path}: model card not found. A model directory needs model.onnx, vocab.txt and model.json ({{\"id\", \"pooling\", \"max_tokens\", \"dimensions\"}}).");
+        ModelCard? card;
+        try
+        {
+            card = JsonSerializer.Deserialize<ModelCard>(File.ReadAllText(path));
+        }
+        catch (JsonException e)
+        {
+            throw new InvalidDataException($"{path}:{e.LineNumber + 1}: model card is not valid JSON ({e.Message}).", e);
+        }
+        if (card is null || string.IsNullOrWhiteSpace(card.Id))
+            throw new InvalidDataException($"{path}: model card needs a non-empty \"id\".");
+        if (card.Pooling is not ("mean" or "cls"))
+            throw new InvalidDataException($"{path}: \"pooling\" must be \"mean\" or \"cls\", not \"{card.Pooling}\".");
+        if (card.MaxTokens is < 3 or > 8192)
+            throw new InvalidDataException($"{path}: \"max_tokens\" must be between 3 and 8192, not {card.MaxTokens}.");
+        if (card.Dimensions is < 1 or > 65536)
+            throw new InvalidDataException($"{path}: \"dimensions\" must be between 1 and 65536, not {card.Dimensions}.");
+        return card;
+    }
+}

@@ -1,0 +1,119 @@
+using System.Security.Cryptography;
+using Microsoft.Extensions.AI;
+using Microsoft.ML.OnnxRuntime;
+using TaskPhrase.Embedding;
+
+namespace TaskPhrase.Onnx;
+
+public sealed partial class OnnxEmbedder
+{
+    private OnnxEmbedder(string directory, ModelCard card, OnnxEmbedderOptions options, InferenceSession session,
+        WordPieceTokenizer tokenizer, string outputName, bool needsTokenTypes, string sha256)
+    {
+        ModelDirectory = directory;
+        _card = card;
+        _options = options;
+        _session = session;
+        _tokenizer = tokenizer;
+        _outputName = outputName;
+        _needsTokenTypes = needsTokenTypes;
+        Model = new EmbeddingModelInfo(card.Id, sha256, card.Dimensions, card.MaxTokens, card.Pooling);
+        _metadata = new EmbeddingGeneratorMetadata("TaskPhrase.Onnx", new Uri("file://" + Path.GetFullPath(directory)), card.Id, card.Dimensions);
+    }
+
+    /// <summary>Loads the default built-in model (all-MiniLM-L6-v2).</summary>
+    /// <exception cref="DirectoryNotFoundException">The built-in model's files are missing.</exception>
+    /// <exception cref="InvalidDataException">The model files do not match their card or the expected contract.</exception>
+    public static OnnxEmbedder CreateDefault(OnnxEmbedderOptions? options = null)
+        => Create(BuiltInModels.Locate(BuiltInModels.MiniLmL6V2), options);
+
+    /// <summary>
+    /// Loads a model directory holding <c>model.onnx</c>, <c>vocab.txt</c> and <c>model.json</c> (the card),
+    /// or a built-in model id. Checks the model's contract: inputs <c>input_ids</c> and <c>attention_mask</c>
+    /// (int64, optional <c>token_type_ids</c>) and a float output of width <see cref="ModelCard.Dimensions"/>.
+    /// </summary>
+    /// <param name="directoryOrId">A directory, or one of <see cref="BuiltInModels.Ids"/>.</param>
+    /// <param name="options">Runtime settings; null for the defaults.</param>
+    /// <exception cref="DirectoryNotFoundException">The directory (or built-in model) does not exist.</exception>
+    /// <exception cref="InvalidDataException">A file is missing, malformed, has the wrong SHA-256, or the model's inputs/outputs do not fit; the message names the file and node.</exception>
+    public static OnnxEmbedder Create(string directoryOrId, OnnxEmbedderOptions? options = null)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(directoryOrId);
+        options ??= new OnnxEmbedderOptions();
+        string directory = !Directory.Exists(directoryOrId) && BuiltInModels.Ids.Contains(directoryOrId)
+            ? BuiltInModels.Locate(directoryOrId)
+            : directoryOrId;
+        if (!Directory.Exists(directory))
+            throw new DirectoryNotFoundException($"Model directory '{directory}' does not exist. Pass a folder with model.onnx, vocab.txt and model.json, or a built-in id ({string.Join(", ", BuiltInModels.Ids)}).");
+        string modelPath = Path.Combine(directory, "model.onnx");
+        string vocabPath = Path.Combine(directory, "vocab.txt");
+        foreach (var required in new[] { modelPath, vocabPath })
+            if (!File.Exists(required)) throw new InvalidDataException($"{required}: missing. A model directory needs model.onnx, vocab.txt and model.json.");
+        var card = ModelCard.Load(Path.Combine(directory, "model.json"));
+
+        // Hash the model beside session creation: both read the same 90 MB once, in parallel.
+        var hashing = Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); });
+        var tokenizer = new WordPieceTokenizer(vocabPath, card.Lowercase);
+        var sessionOptions = new SessionOptions
+        {
+            GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
+            ExecutionMode = ExecutionMode.ORT_SEQUENTIAL,
+            IntraOpNumThreads = options.IntraOpThreads,
+            InterOpNumThreads = 1,
+        };
+        sessionOptions.AddSessionConfigEntry("session.intra_op.allow_spinning", options.AllowSpinning ? "1" : "0");
+        InferenceSession session;
+        try
+        {
+            session = new InferenceSession(modelPath, sessionOptions);
+        }
+        catch (OnnxRuntimeException e)
+        {
+            throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e);
+        }
+        finally { sessionOptions.Dispose(); }
+
+        try
+        {
+            var (outputName, needsTypes) = CheckContract(session, modelPath, card);
+            string sha = hashing.GetAwaiter().GetResult();
+            if (options.VerifyModelHash && card.ModelSha256 is { Length: > 0 } expected && !string.Equals(expected, sha, StringComparison.OrdinalIgnoreCase))
+                throw new InvalidDataException($"{modelPath}: SHA-256 is {sha} but the model card records {expected}. The file was changed or corrupted; restore it (rebuild extracts the built-in models again).");
+            return new OnnxEmbedder(directory, card, options, session, tokenizer, outputName, needsTypes, sha);
+        }
+        catch
+        {
+            session.Dispose();
+            throw;
+        }
+    }
+
+    private static (string OutputName, bool NeedsTokenTypes) CheckContract(InferenceSession session, string modelPath, ModelCard card)
+    {
+        var inputs = session.InputMetadata;
+        foreach (var name in InputNames)
+        {
+            if (!inputs.TryGetValue(name, out var meta))
+                throw new InvalidDataException($"{modelPath}: model has no input node '{name}' (inputs: {string.Join(", ", inputs.Keys)}); expected a BERT-style encoder with input_ids and attention_mask.");
+            if (meta.ElementType != typeof(long))
+                throw new InvalidDataException($"{modelPath}: input node '{name}' has element type {meta.ElementType.Name}; expected Int64.");
+        }
+        var unknown = inputs.Keys.Except(InputNamesWithTypes).ToList();
+        if (unknown.Count > 0)
+            throw new InvalidDataException($"{modelPath}: model needs inputs this embedder cannot supply: {string.Join(", ", unknown)}.");
+        bool needsTypes = inputs.ContainsKey("token_type_ids");
+
+        var outputs = session.OutputMetadata;
+        string outputName = outputs.ContainsKey("last_hidden_state")
+            ? "last_hidden_state"
+            : outputs.FirstOrDefault(o => o.Value.Dimensions.Length == 3).Key
+              ?? throw new InvalidDataException($"{modelPath}: no output node of rank 3 [batch, tokens, dimensions] (outputs: {string.Join(", ", outputs.Keys)}).");
+        var output = outputs[outputName];
+        if (output.ElementType != typeof(float))
+            throw new InvalidDataException($"{modelPath}: output node '{outputName}' has element type {output.ElementType.Name}; expected Single.");
+        int width = output.Dimensions[^1];
+        if (width > 0 && width != card.Dimensions)
+            throw new InvalidDataException($"{modelPath}: output node '{outputName}' has width {width} but the model card says {card.Dimensions} dimensions.");
+        return (outputName, needsTypes);
+    }
+}

@@ -57,6 +57,13 @@ public sealed record Resolution
     /// <summary>The hazard word that caused a <see cref="RejectionReason.Hazard"/> rejection, if any.</summary>
     public string? HazardWord { get; init; }
 
+    /// <summary>
+    /// The first threshold-independent guard that fires for this utterance (negated, hazard, look-alike,
+    /// unintelligible, empty), even when the outcome was decided by a threshold; <see cref="RejectionReason.None"/> when none fires.
+    /// Calibration uses it to replay decisions under other thresholds.
+    /// </summary>
+    public RejectionReason Guard { get; init; }
+
     /// <summary>The negation cue that caused a <see cref="RejectionReason.Negated"/> rejection, if any.</summary>
     public string? NegationCue { get; init; }
 

@@ -1,0 +1,56 @@
+namespace TaskPhrase.Resolution;
+
+/// <summary>Settings of a <see cref="TaskResolver"/>. Validated when set; copied at creation.</summary>
+public sealed class ResolverOptions
+{
+    private int _topK = 3;
+    private int _candidates = 5;
+    private int _maxInputChars = 1000;
+
+    /// <summary>Scoring strategy; null uses the registry's <c>scoring</c> key, else <see cref="DefaultScoring"/>.</summary>
+    public ScoringStrategy? Scoring { get; set; }
+
+    /// <summary>The built-in default strategy, chosen from CLINC150 measurements (see README).</summary>
+    public const ScoringStrategy DefaultScoring = ScoringStrategy.Blend;
+
+    /// <summary>k for <see cref="ScoringStrategy.TopK"/> (default 3).</summary>
+    /// <exception cref="ArgumentOutOfRangeException">Below 1 or above 100.</exception>
+    public int TopK
+    {
+        get => _topK;
+        set { ArgumentOutOfRangeException.ThrowIfLessThan(value, 1); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, 100); _topK = value; }
+    }
+
+    /// <summary>How many candidates a resolution lists (default 5).</summary>
+    /// <exception cref="ArgumentOutOfRangeException">Below 1 or above 100.</exception>
+    public int Candidates
+    {
+        get => _candidates;
+        set { ArgumentOutOfRangeException.ThrowIfLessThan(value, 1); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, 100); _candidates = value; }
+    }
+
+    /// <summary>
+    /// Longest utterance, in characters after normalisation, that is processed (default 1,000); longer input
+    /// is cut there and the resolution is flagged <see cref="Resolution.Truncated"/>.
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException">Below 16 or above 100,000.</exception>
+    public int MaxInputChars
+    {
+        get => _maxInputChars;
+        set { ArgumentOutOfRangeException.ThrowIfLessThan(value, 16); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, 100_000); _maxInputChars = value; }
+    }
+
+    /// <summary>Override of the accept threshold for every task (ignores registry values); null keeps the registry's.</summary>
+    public float? AcceptOverride { get; set; }
+
+    /// <summary>Override of the margin for every task; null keeps the registry's.</summary>
+    public float? MarginOverride { get; set; }
+
+    /// <summary>Whether to run the lexical hazard check (default true).</summary>
+    public bool HazardCheck { get; set; } = true;
+
+    /// <summary>Whether to run the unintelligible guard (default true).</summary>
+    public bool UnintelligibleGuard { get; set; } = true;
+
+    internal ResolverOptions Clone() => (ResolverOptions)MemberwiseClone();
+}

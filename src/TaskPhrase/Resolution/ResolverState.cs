@@ -1,0 +1,110 @@
+using System.Numerics.Tensors;
+using TaskPhrase.Embedding;
+using TaskPhrase.Registry;
+using TaskPhrase.Text;
+
+namespace TaskPhrase.Resolution;
+
+/// <summary>
+/// Everything a resolver needs for one registry, precomputed and immutable: the phrase matrix, centroids,
+/// look-alike vectors, the exact-match table and each task's vocabulary. Swapped atomically on reload.
+/// </summary>
+internal sealed class ResolverState
+{
+    public required TaskRegistry Registry { get; init; }
+    public required EmbeddingModelInfo Model { get; init; }
+    public required ScoringStrategy Scoring { get; init; }
+    public required int Dimensions { get; init; }
+
+    /// <summary>Approved phrase embeddings, row-major, tasks in registry order then phrases in order.</summary>
+    public required float[] Phrases { get; init; }
+
+    /// <summary>For each phrase row, the task's position.</summary>
+    public required int[] PhraseTask { get; init; }
+
+    /// <summary>For each phrase row, its position within its task's phrase list.</summary>
+    public required int[] PhraseOrdinal { get; init; }
+
+    /// <summary>Normalised centroid of each task, row-major.</summary>
+    public required float[] Centroids { get; init; }
+
+    /// <summary>must_reject embeddings, row-major, and their task positions.</summary>
+    public required float[] MustReject { get; init; }
+    public required int[] MustRejectTask { get; init; }
+
+    /// <summary>Match key of each approved phrase → phrase row.</summary>
+    public required Dictionary<string, int> Exact { get; init; }
+
+    /// <summary>Per task: stems of its vocabulary (phrases, title, also_words).</summary>
+    public required HashSet<string>[] Vocabulary { get; init; }
+
+    /// <summary>Per task: negation cues its own phrases carry.</summary>
+    public required IReadOnlySet<string>[] TaskNegations { get; init; }
+
+    public required HazardLexicon Hazards { get; init; }
+
+    public int TaskCount => Registry.Tasks.Count;
+
+    public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
+        ReadOnlySpan<float> mustReject, ScoringStrategy scoring)
+    {
+        int dims = model.Dimensions;
+        var tasks = registry.Tasks;
+        int phraseCount = tasks.Sum(t => t.Phrases.Count);
+        int rejectCount = tasks.Sum(t => t.MustReject.Count);
+        if (phrases.Length != phraseCount * dims)
+            throw new ArgumentException($"Expected {phraseCount} phrase embeddings of {dims} dimensions, got {phrases.Length} values.", nameof(phrases));
+        if (mustReject.Length != rejectCount * dims)
+            throw new ArgumentException($"Expected {rejectCount} must_reject embeddings of {dims} dimensions, got {mustReject.Length} values.", nameof(mustReject));
+
+        var phraseTask = new int[phraseCount];
+        var phraseOrdinal = new int[phraseCount];
+        var rejectTask = new int[rejectCount];
+        var centroids = new float[tasks.Count * dims];
+        var exact = new Dictionary<string, int>(StringComparer.Ordinal);
+        var vocab = new HashSet<string>[tasks.Count];
+        var negations = new IReadOnlySet<string>[tasks.Count];
+        int row = 0, rrow = 0;
+        for (int t = 0; t < tasks.Count; t++)
+        {
+            var task = tasks[t];
+            var centroid = centroids.AsSpan(t * dims, dims);
+            var cues = new HashSet<string>(StringComparer.Ordinal);
+            vocab[t] = new HashSet<string>(StringComparer.Ordinal);
+            foreach (var w in WordStemmer.Words(task.Title).Concat(task.AlsoWords.SelectMany(WordStemmer.Words)))
+                vocab[t].Add(WordStemmer.Stem(w));
+            for (int p = 0; p < task.Phrases.Count; p++, row++)
+            {
+                phraseTask[row] = t;
+                phraseOrdinal[row] = p;
+                exact.TryAdd(TextNormalizer.MatchKey(task.Phrases[p]), row);
+                TensorPrimitives.Add(centroid, phrases.Slice(row * dims, dims), centroid);
+                var words = WordStemmer.Words(task.Phrases[p]);
+                foreach (var w in words) vocab[t].Add(WordStemmer.Stem(w));
+                cues.UnionWith(NegationCues.All(words));
+            }
+            float norm = TensorPrimitives.Norm(centroid);
+            if (norm > 0) TensorPrimitives.Divide(centroid, norm, centroid);
+            negations[t] = cues;
+            for (int r = 0; r < task.MustReject.Count; r++, rrow++) rejectTask[rrow] = t;
+        }
+        var settings = registry.Settings;
+        return new ResolverState
+        {
+            Registry = registry,
+            Model = model,
+            Scoring = scoring,
+            Dimensions = dims,
+            Phrases = phrases.ToArray(),
+            PhraseTask = phraseTask,
+            PhraseOrdinal = phraseOrdinal,
+            Centroids = centroids,
+            MustReject = mustReject.ToArray(),
+            MustRejectTask = rejectTask,
+            Exact = exact,
+            Vocabulary = vocab,
+            TaskNegations = negations,
+            Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+        };
+    }
+}

@@ -1,0 +1,232 @@
+using System.Diagnostics;
+using Microsoft.Extensions.AI;
+using TaskPhrase.Embedding;
+using TaskPhrase.Registry;
+
+namespace TaskPhrase.Resolution;
+
+/// <summary>
+/// Resolves utterances to the nearest approved task of a registry, and refuses — with a reason — input that is
+/// empty, unintelligible, out of scope, ambiguous, a known look-alike, negated or hazardous.
+/// Works with any <see cref="IEmbeddingGenerator{TInput, TEmbedding}"/> of <see cref="Embedding{T}"/> of float.
+/// </summary>
+/// <remarks>
+/// Thread-safe: any number of threads may resolve at once. <see cref="Reload(TaskRegistry, CancellationToken)"/>
+/// swaps the registry atomically; calls in flight finish on the registry they started with.
+/// The resolver does not own the generator: dispose the generator yourself.
+/// </remarks>
+public sealed partial class TaskResolver
+{
+    private readonly IEmbeddingGenerator<string, Embedding<float>> _generator;
+    private readonly ISpanEmbedder? _span;
+    private readonly ResolverOptions _options;
+    private readonly EmbeddingModelInfo _model;
+    private ResolverState _state;
+
+    private TaskResolver(IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model, ResolverOptions options, ResolverState state)
+    {
+        _generator = generator;
+        _span = generator.GetService(typeof(ISpanEmbedder)) as ISpanEmbedder;
+        _model = model;
+        _options = options;
+        _state = state;
+    }
+
+    /// <summary>The registry currently in force.</summary>
+    public TaskRegistry Registry => Volatile.Read(ref _state).Registry;
+
+    /// <summary>The embedding model's identity.</summary>
+    public EmbeddingModelInfo Model => _model;
+
+    /// <summary>The scoring strategy in force.</summary>
+    public ScoringStrategy Scoring => Volatile.Read(ref _state).Scoring;
+
+    /// <summary>
+    /// Creates a resolver for <paramref name="registry"/>, embedding its approved and look-alike phrases with
+    /// <paramref name="generator"/> (one batched call).
+    /// </summary>
+    /// <exception cref="ArgumentNullException">An argument is null.</exception>
+    /// <exception cref="InvalidOperationException">The generator returned vectors of inconsistent width.</exception>
+    public static async Task<TaskResolver> CreateAsync(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator,
+        ResolverOptions? options = null, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(registry);
+        ArgumentNullException.ThrowIfNull(generator);
+        options = options?.Clone() ?? new ResolverOptions();
+        var (model, state) = await BuildStateAsync(registry, generator, options, cancellationToken).ConfigureAwait(false);
+        return new TaskResolver(generator, model, options, state);
+    }
+
+    /// <summary>Synchronous form of <see cref="CreateAsync"/>.</summary>
+    public static TaskResolver Create(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions? options = null)
+        => CreateAsync(registry, generator, options).GetAwaiter().GetResult();
+
+    /// <summary>
+    /// Creates a resolver from precomputed embeddings (for example a compiled index): no model forward passes.
+    /// </summary>
+    /// <param name="registry">The registry the embeddings belong to.</param>
+    /// <param name="generator">The generator for utterances; its model must be <paramref name="model"/>.</param>
+    /// <param name="model">The model the embeddings were computed with.</param>
+    /// <param name="phraseEmbeddings">One row per approved phrase (tasks in order, phrases in order), row-major.</param>
+    /// <param name="mustRejectEmbeddings">One row per must_reject phrase, same order.</param>
+    /// <param name="options">Settings; null for defaults.</param>
+    /// <exception cref="InvalidOperationException">The generator's model differs from <paramref name="model"/>.</exception>
+    public static TaskResolver FromEmbeddings(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model,
+        ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings, ResolverOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(registry);
+        ArgumentNullException.ThrowIfNull(generator);
+        ArgumentNullException.ThrowIfNull(model);
+        options = options?.Clone() ?? new ResolverOptions();
+        if (generator.GetService(typeof(EmbeddingModelInfo)) is EmbeddingModelInfo live && (live.Sha256 != model.Sha256 || live.Dimensions != model.Dimensions))
+            throw new InvalidOperationException($"The embeddings were computed with model '{model.Id}' (SHA-256 {model.Sha256}) but the generator runs '{live.Id}' (SHA-256 {live.Sha256}). Rebuild the index with this model.");
+        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, options));
+        return new TaskResolver(generator, model, options, state);
+    }
+
+    /// <summary>Replaces the registry atomically (its phrases are embedded first); calls in flight finish on the old one.</summary>
+    public async Task ReloadAsync(TaskRegistry registry, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(registry);
+        var (_, state) = await BuildStateAsync(registry, _generator, _options, cancellationToken).ConfigureAwait(false);
+        Volatile.Write(ref _state, state);
+    }
+
+    /// <summary>Synchronous form of <see cref="ReloadAsync"/>.</summary>
+    public void Reload(TaskRegistry registry, CancellationToken cancellationToken = default)
+        => ReloadAsync(registry, cancellationToken).GetAwaiter().GetResult();
+
+    /// <summary>Replaces the registry atomically with precomputed embeddings (see <see cref="FromEmbeddings"/>).</summary>
+    public void Reload(TaskRegistry registry, ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings)
+    {
+        ArgumentNullException.ThrowIfNull(registry);
+        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options));
+        Volatile.Write(ref _state, state);
+    }
+
+    /// <summary>Resolves one utterance.</summary>
+    /// <exception cref="ArgumentNullException"><paramref name="utterance"/> is null.</exception>
+    public Resolution Resolve(string utterance)
+    {
+        ArgumentNullException.ThrowIfNull(utterance);
+        var state = Volatile.Read(ref _state);
+        long start = Stopwatch.GetTimestamp();
+        var prepared = Prepare(state, utterance);
+        if (prepared.Early is { } early) return early with { Elapsed = Stopwatch.GetElapsedTime(start) };
+        var vector = new float[state.Dimensions];
+        bool truncated = EmbedOne(prepared.Text, vector);
+        return Decide(state, prepared, vector, truncated) with { Elapsed = Stopwatch.GetElapsedTime(start) };
+    }
+
+    /// <summary>Resolves one utterance; the embedding call is awaited (useful with remote generators).</summary>
+    public async Task<Resolution> ResolveAsync(string utterance, CancellationToken cancellationToken = default)
+    {
+        var results = await ResolveManyAsync([utterance ?? throw new ArgumentNullException(nameof(utterance))], cancellationToken).ConfigureAwait(false);
+        return results[0];
+    }
+
+    /// <summary>Resolves many utterances with batched embedding; results are in input order.</summary>
+    public IReadOnlyList<Resolution> ResolveMany(IReadOnlyList<string> utterances, CancellationToken cancellationToken = default)
+        => ResolveManyAsync(utterances, cancellationToken).GetAwaiter().GetResult();
+
+    /// <summary>Resolves many utterances with batched embedding; results are in input order.</summary>
+    public async Task<IReadOnlyList<Resolution>> ResolveManyAsync(IReadOnlyList<string> utterances, CancellationToken cancellationToken = default)
+    {
+        ArgumentNullException.ThrowIfNull(utterances);
+        var state = Volatile.Read(ref _state);
+        long start = Stopwatch.GetTimestamp();
+        var results = new Resolution[utterances.Count];
+        var prepared = new Prepared[utterances.Count];
+        var toEmbed = new List<int>();
+        for (int i = 0; i < utterances.Count; i++)
+        {
+            prepared[i] = Prepare(state, utterances[i] ?? throw new ArgumentException($"Utterance {i} is null.", nameof(utterances)));
+            if (prepared[i].Early is { } early) results[i] = early;
+            else toEmbed.Add(i);
+        }
+        if (toEmbed.Count > 0)
+        {
+            var embeddings = await _generator.GenerateAsync(toEmbed.Select(i => prepared[i].Text).ToList(), null, cancellationToken).ConfigureAwait(false);
+            for (int k = 0; k < toEmbed.Count; k++)
+            {
+                int i = toEmbed[k];
+                var e = embeddings[k];
+                CheckWidth(e.Vector.Length, state.Dimensions);
+                bool truncated = e.AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
+                results[i] = Decide(state, prepared[i], e.Vector.Span, truncated);
+            }
+        }
+        var elapsed = Stopwatch.GetElapsedTime(start) / Math.Max(1, utterances.Count);
+        for (int i = 0; i < results.Length; i++) results[i] = results[i] with { Elapsed = elapsed };
+        return results;
+    }
+
+    /// <summary>
+    /// Scores every task for <paramref name="utterance"/> and returns the top <paramref name="count"/> candidates,
+    /// best first, without any decision (no thresholds, no guards).
+    /// </summary>
+    public IReadOnlyList<TaskCandidate> Rank(string utterance, int count = 5)
+    {
+        ArgumentNullException.ThrowIfNull(utterance);
+        ArgumentOutOfRangeException.ThrowIfLessThan(count, 1);
+        var state = Volatile.Read(ref _state);
+        var vector = new float[state.Dimensions];
+        EmbedOne(Text.TextNormalizer.Normalize(utterance), vector);
+        var scores = ScoreTasks(state, vector, out var bestRow);
+        return TopCandidates(state, scores, bestRow, count);
+    }
+
+    private bool EmbedOne(string text, Span<float> destination)
+    {
+        if (_span is not null) return _span.Embed(text, destination);
+        var result = _generator.GenerateAsync([text]).GetAwaiter().GetResult();
+        var vector = result[0].Vector.Span;
+        CheckWidth(vector.Length, destination.Length);
+        vector.CopyTo(destination);
+        return result[0].AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
+    }
+
+    private static void CheckWidth(int actual, int expected)
+    {
+        if (actual != expected)
+            throw new InvalidOperationException($"The embedding generator returned a vector of {actual} dimensions; the registry's embeddings have {expected}.");
+    }
+
+    private static ScoringStrategy ChooseScoring(TaskRegistry registry, ResolverOptions options)
+    {
+        if (options.Scoring is { } chosen) return chosen;
+        return registry.Settings.Scoring switch
+        {
+            null or "" => ResolverOptions.DefaultScoring,
+            "best-phrase" => ScoringStrategy.BestPhrase,
+            "centroid" => ScoringStrategy.Centroid,
+            "top-k" => ScoringStrategy.TopK,
+            "blend" => ScoringStrategy.Blend,
+            var other => throw new ArgumentException($"Unknown scoring strategy '{other}' in the registry; use best-phrase, centroid, top-k or blend."),
+        };
+    }
+
+    private static async Task<(EmbeddingModelInfo, ResolverState)> BuildStateAsync(TaskRegistry registry,
+        IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions options, CancellationToken ct)
+    {
+        var texts = registry.Tasks.SelectMany(t => t.Phrases).Concat(registry.Tasks.SelectMany(t => t.MustReject)).ToList();
+        var embeddings = await generator.GenerateAsync(texts, null, ct).ConfigureAwait(false);
+        if (embeddings.Count != texts.Count)
+            throw new InvalidOperationException($"The embedding generator returned {embeddings.Count} vectors for {texts.Count} texts.");
+        int dims = embeddings.Count > 0 ? embeddings[0].Vector.Length : 0;
+        var model = generator.GetService(typeof(EmbeddingModelInfo)) as EmbeddingModelInfo
+                    ?? new EmbeddingModelInfo(
+                        (generator.GetService(typeof(EmbeddingGeneratorMetadata)) as EmbeddingGeneratorMetadata)?.DefaultModelId ?? "unknown",
+                        "unknown", dims, 0, "unknown");
+        int phraseCount = registry.Tasks.Sum(t => t.Phrases.Count);
+        var phrases = new float[phraseCount * model.Dimensions];
+        var rejects = new float[(texts.Count - phraseCount) * model.Dimensions];
+        for (int i = 0; i < texts.Count; i++)
+        {
+            var v = embeddings[i].Vector.Span;
+            CheckWidth(v.Length, model.Dimensions);
+            v.CopyTo(i < phraseCount ? phrases.AsSpan(i * model.Dimensions) : rejects.AsSpan((i - phraseCount) * model.Dimensions));
+        }
+        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options)));
+    }
+}

@@ -1,4 +1,5 @@
 using System.CommandLine;
+using TaskPhrase.Cli.Commands;
 
 namespace TaskPhrase.Cli;
 
@@ -6,9 +7,16 @@ namespace TaskPhrase.Cli;
 internal static class CliApp
 {
     public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
+        => Run(args, new CliContext { Out = stdout, Err = stderr, Interactive = !Console.IsOutputRedirected && !Console.IsInputRedirected });
+
+    public static int Run(string[] args, CliContext context)
     {
-        var root = new RootCommand("taskphrase: resolve commands to approved robot-arm tasks, and check, build and audit task registries.");
-        var config = new InvocationConfiguration { Output = stdout, Error = stderr };
+        var root = new RootCommand("taskphrase: resolve spoken or typed commands to approved robot-arm tasks, and check, build and audit task registries.")
+        {
+            CommonOptions.Verbose(),
+        };
+        root.Subcommands.Add(EmbedCommand.Create(context));
+        var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         return root.Parse(args).Invoke(config);
     }
 }

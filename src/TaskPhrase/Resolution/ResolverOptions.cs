@@ -11,7 +11,7 @@ public sealed class ResolverOptions
     public ScoringStrategy? Scoring { get; set; }
 
     /// <summary>The built-in default strategy, chosen from CLINC150 measurements (see README).</summary>
-    public const ScoringStrategy DefaultScoring = ScoringStrategy.Blend;
+    public const ScoringStrategy DefaultScoring = ScoringStrategy.Centroid;
 
     /// <summary>k for <see cref="ScoringStrategy.TopK"/> (default 3).</summary>
     /// <exception cref="ArgumentOutOfRangeException">Below 1 or above 100.</exception>

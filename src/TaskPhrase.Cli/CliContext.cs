@@ -1,0 +1,56 @@
+using Spectre.Console;
+using TaskPhrase.Onnx;
+
+namespace TaskPhrase.Cli;
+
+/// <summary>What a command needs from its surroundings: output streams, standard input, and how to load a model.</summary>
+internal sealed class CliContext
+{
+    public required TextWriter Out { get; init; }
+    public required TextWriter Err { get; init; }
+
+    /// <summary>Standard input (for <c>--input -</c> and the interactive prompt).</summary>
+    public Func<Stream> OpenStdin { get; init; } = System.Console.OpenStandardInput;
+
+    /// <summary>True when a person is at the terminal (prompt loop, colour, progress).</summary>
+    public bool Interactive { get; init; }
+
+    /// <summary>Loads an embedder for <c>--model</c> (null: the built-in default). Tests inject a shared one.</summary>
+    public Func<string?, OnnxEmbedder> LoadModel { get; init; } = dir => dir is null ? OnnxEmbedder.CreateDefault() : OnnxEmbedder.Create(dir);
+
+    /// <summary>True when the caller owns embedders returned by <see cref="LoadModel"/> (tests share one).</summary>
+    public bool OwnsModels { get; init; } = true;
+
+    /// <summary>A Spectre console over <see cref="Out"/>, with colour only when interactive.</summary>
+    public IAnsiConsole Console(TextWriter? writer = null) => AnsiConsole.Create(new AnsiConsoleSettings
+    {
+        Out = new AnsiConsoleOutput(writer ?? Out),
+        Ansi = Interactive ? AnsiSupport.Detect : AnsiSupport.No,
+        ColorSystem = Interactive ? ColorSystemSupport.Detect : ColorSystemSupport.NoColors,
+        Interactive = Interactive ? InteractionSupport.Detect : InteractionSupport.No,
+    });
+
+    /// <summary>Loads the model, turning load failures into one-line errors.</summary>
+    public ModelLease Model(string? directory)
+    {
+        try
+        {
+            return new ModelLease(LoadModel(directory), OwnsModels);
+        }
+        catch (Exception e) when (e is DirectoryNotFoundException or InvalidDataException or FileNotFoundException)
+        {
+            throw new CliException(e.Message, ExitCodes.BadInput, e);
+        }
+    }
+}
+
+/// <summary>An embedder for the length of one command; disposed only when the command owns it.</summary>
+internal sealed class ModelLease(OnnxEmbedder embedder, bool owned) : IDisposable
+{
+    public OnnxEmbedder Embedder { get; } = embedder;
+
+    public void Dispose()
+    {
+        if (owned) Embedder.Dispose();
+    }
+}

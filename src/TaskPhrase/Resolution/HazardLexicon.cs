@@ -5,7 +5,8 @@ namespace TaskPhrase.Resolution;
 /// <summary>
 /// Harmful actions and harmful targets for an assistive arm. An utterance whose content words, not covered by
 /// the matched task's own vocabulary, include one of these is rejected with <see cref="RejectionReason.Hazard"/>.
-/// Words are matched by Snowball stem. Immutable and thread-safe; registries extend it with
+/// Actions are matched by Snowball stem ("throwing" matches "throw"); targets by exact word form, since their stems
+/// collide with harmless words ("facing" → "face", "personal" → "person"). Immutable and thread-safe; registries extend it with
 /// <c>hazard_words</c> and remove built-in words with <c>allow_words</c>.
 /// </summary>
 public sealed class HazardLexicon
@@ -27,48 +28,50 @@ public sealed class HazardLexicon
     [
         "face", "eye", "eyes", "head", "mouth", "nose", "ear", "neck", "throat", "hands", "finger", "fingers",
         "leg", "legs", "foot", "feet", "skin", "body", "chest", "stomach", "lap", "hair", "someone",
-        "somebody", "person", "people", "carer", "nurse", "visitor", "child", "baby", "cat", "dog", "yourself", "myself",
+        "somebody", "person", "carer", "nurse", "visitor", "child", "baby", "yourself", "myself",
     ];
 
-    private readonly HashSet<string> _stems;
-    private readonly Dictionary<string, string> _wordOfStem;
+    private readonly HashSet<string> _actionStems;
+    private readonly HashSet<string> _targets;
 
-    private HazardLexicon(IEnumerable<string> words)
+    private HazardLexicon(IEnumerable<string> actions, IEnumerable<string> targets)
     {
-        _stems = new HashSet<string>(StringComparer.Ordinal);
-        _wordOfStem = new Dictionary<string, string>(StringComparer.Ordinal);
-        foreach (var w in words)
-        {
-            string stem = WordStemmer.Stem(w.ToLowerInvariant());
-            if (_stems.Add(stem)) _wordOfStem[stem] = w;
-        }
-        Words = _wordOfStem.Values.Order(StringComparer.Ordinal).ToArray();
+        Actions = actions.Select(w => w.ToLowerInvariant()).Distinct().Order(StringComparer.Ordinal).ToArray();
+        Targets = targets.Select(w => w.ToLowerInvariant()).Distinct().Order(StringComparer.Ordinal).ToArray();
+        _actionStems = new HashSet<string>(Actions.Select(WordStemmer.Stem), StringComparer.Ordinal);
+        _targets = new HashSet<string>(Targets, StringComparer.Ordinal);
     }
 
     /// <summary>The built-in lexicon: <see cref="BuiltInActions"/> and <see cref="BuiltInTargets"/>.</summary>
-    public static HazardLexicon BuiltIn { get; } = new(BuiltInActions.Concat(BuiltInTargets));
+    public static HazardLexicon BuiltIn { get; } = new(BuiltInActions, BuiltInTargets);
 
-    /// <summary>The words in force, sorted.</summary>
-    public IReadOnlyList<string> Words { get; }
+    /// <summary>The action words in force (matched by stem), sorted.</summary>
+    public IReadOnlyList<string> Actions { get; }
 
-    /// <summary>A lexicon with <paramref name="add"/> added and <paramref name="remove"/> taken out (compared by stem).</summary>
+    /// <summary>The target words in force (matched exactly), sorted.</summary>
+    public IReadOnlyList<string> Targets { get; }
+
+    /// <summary>
+    /// A lexicon with <paramref name="add"/> added as actions (matched by stem) and <paramref name="remove"/> taken
+    /// out of both lists (actions compared by stem, targets by word).
+    /// </summary>
     public HazardLexicon With(IEnumerable<string> add, IEnumerable<string> remove)
     {
         ArgumentNullException.ThrowIfNull(add);
         ArgumentNullException.ThrowIfNull(remove);
-        var removed = new HashSet<string>(remove.Select(w => WordStemmer.Stem(w.ToLowerInvariant())), StringComparer.Ordinal);
-        return new HazardLexicon(Words.Concat(add).Where(w => !removed.Contains(WordStemmer.Stem(w.ToLowerInvariant()))));
+        var removedWords = remove.Select(w => w.ToLowerInvariant()).ToHashSet(StringComparer.Ordinal);
+        var removedStems = removedWords.Select(WordStemmer.Stem).ToHashSet(StringComparer.Ordinal);
+        return new HazardLexicon(
+            Actions.Concat(add).Where(w => !removedStems.Contains(WordStemmer.Stem(w.ToLowerInvariant()))),
+            Targets.Where(w => !removedWords.Contains(w)));
     }
 
-    /// <summary>True when the stem is a hazard stem.</summary>
-    public bool ContainsStem(string stem) => _stems.Contains(stem);
-
-    /// <summary>The first hazard word among <paramref name="words"/> (compared by stem), or null.</summary>
+    /// <summary>The first hazard word among <paramref name="words"/> (lower case), or null.</summary>
     public string? FindIn(IEnumerable<string> words)
     {
         ArgumentNullException.ThrowIfNull(words);
         foreach (var w in words)
-            if (_stems.Contains(WordStemmer.Stem(w))) return w;
+            if (_targets.Contains(w) || _actionStems.Contains(WordStemmer.Stem(w))) return w;
         return null;
     }
 }

@@ -9,9 +9,8 @@ public static class NegationCues
     /// <summary>Single-word cues (after apostrophe folding and lower-casing).</summary>
     public static IReadOnlySet<string> Words { get; } = new HashSet<string>(StringComparer.Ordinal)
     {
-        "don't", "dont", "doesn't", "doesnt", "didn't", "didnt", "never", "not", "no", "nope", "won't", "wont",
-        "shouldn't", "shouldnt", "mustn't", "mustnt", "can't", "cant", "cannot", "stop", "quit", "cease",
-        "cancel", "nothing", "nobody", "neither", "nor", "without", "skip", "avoid", "refrain",
+        "don't", "dont", "doesn't", "doesnt", "didn't", "didnt", "never", "not", "won't", "wont",
+        "shouldn't", "shouldnt", "mustn't", "mustnt", "stop", "quit", "cease", "cancel", "skip",
     };
 
     /// <summary>Two-word cues.</summary>

@@ -12,9 +12,9 @@ public class ClincMeasurement(ModelFixture fixture, ITestOutputHelper output)
     {
         var gen = new CachingEmbeddingGenerator(fixture.Embedder);
         var val = Clinc150.Split("val").Concat(Clinc150.Split("oos_val")).ToList();
-        foreach (var strategy in Enum.GetValues<ScoringStrategy>())
+        foreach (var strategy in new[] { ScoringStrategy.Centroid })
         {
-            var resolver = TaskResolver.Create(ClincRegistry.Build(10), gen, new ResolverOptions { Scoring = strategy, AcceptOverride = -1, MarginOverride = 0, HazardCheck = false });
+            var resolver = TaskResolver.Create(ClincRegistry.Build(10), gen, new ResolverOptions { Scoring = strategy, AcceptOverride = -1, MarginOverride = 0 });
             var res = resolver.ResolveMany(val.Select(v => v.Text).ToList());
             var rows = val.Zip(res).Select(p => (Expect: ClincRegistry.TaskIdOf(p.First.Intent), Top: p.Second.Candidates.Count > 0 ? p.Second.Candidates[0].TaskId : null, Score: p.Second.Score ?? -1, Margin: p.Second.Margin ?? 1, Guard: p.Second.Guard != RejectionReason.None)).ToList();
             var ins = rows.Where(r => r.Expect != "reject").ToList();
@@ -27,6 +27,8 @@ public class ClincMeasurement(ModelFixture fixture, ITestOutputHelper output)
             double wrong = ins.Count(r => r.Top != r.Expect && r.Score > t && !r.Guard) / (double)ins.Count;
             double far = oos.Count(r => r.Score > t && !r.Guard) / (double)oos.Count;
             int guards = rows.Count(r => r.Guard);
+            foreach (var g in val.Zip(res).Where(p => p.Second.Guard != RejectionReason.None).GroupBy(p => p.Second.Guard))
+                output.WriteLine($"  guard {g.Key}: {g.Count()} e.g. {string.Join(" | ", g.Take(40).Select(p => p.First.Text + " [" + (p.Second.HazardWord ?? p.Second.NegationCue ?? p.Second.Detail) + "]"))}");
             output.WriteLine($"{strategy}: closed-set {closed:P1}; at t={t:0.000}: acc {acc:P1} wrong {wrong:P1} far {far:P1}; guards fired {guards}");
         }
     }

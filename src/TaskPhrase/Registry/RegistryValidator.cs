@@ -56,9 +56,8 @@ internal sealed partial class RegistryValidator
                 $"a registry must be a mapping with the keys 'version' and 'tasks', but this file holds {root.Describe()}.");
             return null;
         }
+        if (!ReadVersion(map)) return null; // another version may have other keys: report nothing else
         CheckKeys(map, RootKeys, "the registry");
-
-        if (!ReadVersion(map)) return null;
 
         string? modelId = ReadOptionalText(map, "model", "the registry", "name the model the thresholds were tuned for, e.g. all-minilm-l6-v2", normalize: true);
         var defaults = ReadDefaults(map);

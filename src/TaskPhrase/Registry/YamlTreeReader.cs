@@ -85,8 +85,9 @@ internal static partial class YamlTreeReader
                 }
                 if (!node.Tag.IsEmpty)
                 {
+                    string tag = node.Tag.Value.Replace("tag:yaml.org,2002:", "!!", StringComparison.Ordinal);
                     bag.Error(RegistryDiagnosticCodes.TagNotAllowed, at,
-                        $"the explicit YAML tag '{node.Tag}' is not allowed in a registry; remove it (put a value in quotes to make it text).");
+                        $"the explicit YAML tag '{tag}' is not allowed in a registry; remove it (put a value in quotes to make it text).");
                 }
                 if (++nodes > options.MaxNodes)
                 {
@@ -100,7 +101,7 @@ internal static partial class YamlTreeReader
             switch (ev)
             {
                 case Scalar scalar:
-                    Attach(new RegistryScalar(at, scalar.Value, scalar.Style == ScalarStyle.Plain && scalar.Tag.IsEmpty), stack, ref root, bag);
+                    Attach(new RegistryScalar(at, scalar.Value, scalar.Style == ScalarStyle.Plain), stack, ref root, bag);
                     break;
                 case SequenceStart or MappingStart:
                     if (stack.Count + 1 > options.MaxDepth)
@@ -134,7 +135,7 @@ internal static partial class YamlTreeReader
             case RegistrySequence sequence:
                 sequence.Items.Add(node);
                 break;
-            case RegistryMapping mapping when top.PendingKey is null:
+            case RegistryMapping when top.PendingKey is null:
                 top.PendingKey = node;
                 break;
             case RegistryMapping mapping:

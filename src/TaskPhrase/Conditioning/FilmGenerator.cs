@@ -286,7 +286,7 @@ public sealed partial class FilmGenerator
             throw new SafeTensorsException(
                 file.SourceName,
                 name,
-                $"missing; every FiLM layer needs {string.Join(", ", Parts.Select(p => $"{Prefix}{layer}.{p}"))}.");
+                $"the tensor is missing; every FiLM layer needs {string.Join(", ", Parts.Select(p => $"{Prefix}{layer}.{p}"))}.");
         }
 
         if (tensor.DType != SafeTensorsDType.F32)

@@ -336,7 +336,7 @@ internal sealed class SafeTensorsHeader
     private static string TrimReaderMessage(string message)
     {
         var cut = message.IndexOf(" LineNumber:", StringComparison.Ordinal);
-        var text = cut >= 0 ? message[..cut] : message;
+        var text = (cut >= 0 ? message[..cut] : message).Replace(" Change the reader options.", string.Empty, StringComparison.Ordinal).TrimEnd();
         return text.EndsWith('.') ? text : text + ".";
     }
 }

@@ -186,7 +186,7 @@ public sealed partial class FilmGenerator
         {
             if (!float.IsFinite(embedding[i]))
             {
-                throw new ArgumentException($"Embedding element {i} is {embedding[i]}; embeddings must be finite.", nameof(embedding));
+                throw new ArgumentException($"Embedding element {i} is {embedding[i].ToString(CultureInfo.InvariantCulture)}; embeddings must be finite.", nameof(embedding));
             }
         }
     }
@@ -315,7 +315,7 @@ public sealed partial class FilmGenerator
         {
             if (!float.IsFinite(values[i]))
             {
-                throw new SafeTensorsException(file.SourceName, tensor.Name, $"element {i} is {values[i]}; FiLM generator weights must be finite.");
+                throw new SafeTensorsException(file.SourceName, tensor.Name, $"element {i} is {values[i].ToString(CultureInfo.InvariantCulture)}; FiLM generator weights must be finite.");
             }
         }
 

@@ -126,7 +126,7 @@ public sealed class FilmLayer : IEquatable<FilmLayer>
         {
             if (!float.IsFinite(values[i]))
             {
-                throw new ArgumentException($"{symbol}[{i}] is {values[i]}; FiLM parameters must be finite.", parameter);
+                throw new ArgumentException($"{symbol}[{i}] is {values[i].ToString(System.Globalization.CultureInfo.InvariantCulture)}; FiLM parameters must be finite.", parameter);
             }
         }
     }

@@ -169,8 +169,17 @@ public sealed class FilmTable
             rowFloats += 2L * width;
         }
 
-        var expectedLength = headerBytes + (4 * rowFloats * rowCount) + HashBytes;
-        if (rowFloats * rowCount > int.MaxValue || expectedLength != bytes.Length)
+        long expectedLength;
+        try
+        {
+            expectedLength = checked(headerBytes + (4 * rowFloats * rowCount) + HashBytes);
+        }
+        catch (OverflowException)
+        {
+            expectedLength = long.MaxValue;
+        }
+
+        if (expectedLength != bytes.Length)
         {
             throw Invalid(sourceName, $"the table is {bytes.Length} bytes but its header describes {expectedLength}. Rebuild the index.");
         }

@@ -115,6 +115,22 @@ public class FilmTableTests
     }
 
     [Fact]
+    public void FromBytes_HugeDeclaredSizesWithRecomputedHash_AreRefusedWithoutOverflow()
+    {
+        // Widths and a row count whose product overflows 64 bits must not wrap around to the real length.
+        var generator = FilmGenerator.Load(Fixtures.Path("film-2layer-d3-e4.safetensors"), 4);
+        var bytes = FilmTable.Build(generator, Embeddings, 4).ToBytes();
+        BinaryPrimitives.WriteUInt32LittleEndian(bytes.AsSpan(20), int.MaxValue);
+        BinaryPrimitives.WriteUInt32LittleEndian(bytes.AsSpan(28), int.MaxValue);
+        BinaryPrimitives.WriteUInt32LittleEndian(bytes.AsSpan(32), int.MaxValue);
+        SHA256.HashData(bytes.AsSpan(0, bytes.Length - 32), bytes.AsSpan(bytes.Length - 32));
+
+        var error = Assert.Throws<InvalidDataException>(() => FilmTable.FromBytes(bytes));
+
+        Assert.StartsWith("FiLM table: the table is 196 bytes but its header describes ", error.Message);
+    }
+
+    [Fact]
     public void FromBytes_OtherGenerator_IsRefusedNamingBoth()
     {
         var generator = FilmGenerator.Load(Fixtures.Path("film-2layer-d3-e4.safetensors"), 4);

@@ -16,27 +16,53 @@ public sealed partial class ThresholdTuner
         var caps = Options.TradeOffWrongTaskCaps;
         var best = Setting.None;
         var bestPerCap = Enumerable.Repeat(Setting.None, caps.Count).ToArray();
+        // Budgets as largest allowed counts, so the inner loop compares integers (same answers as the rate checks).
+        int faAllowed = MaxAllowed(c => budgets.AllowsFalseAccepts(c, prepared.OutOfScope), prepared.OutOfScope);
+        int wrongAllowed = MaxAllowed(c => budgets.AllowsWrongTask(c, prepared.InScope), prepared.InScope);
+        var capAllowed = caps.Select(cap => MaxAllowed(c => (double)c / prepared.InScope <= cap, prepared.InScope)).ToArray();
+        var live = prepared.Live;
+        var groupEnd = prepared.GroupEnd;
+        var accepts = prepared.AcceptCandidates;
 
         foreach (float margin in margins)
         {
-            Sweep(prepared, margin, (k, correct, wrong, fa) =>
+            // Sweep the accept candidates from strict to lenient: candidate k lets the first k score groups pass.
+            int correct = prepared.ConstCorrect, wrong = prepared.ConstWrong, fa = prepared.ConstFalseAccept;
+            int start = 0;
+            for (int k = 0; k <= groupEnd.Length; k++)
             {
-                float accept = prepared.AcceptCandidates[k];
-                bool faOk = budgets.AllowsFalseAccepts(fa, prepared.OutOfScope);
-                bool feasible = faOk && budgets.AllowsWrongTask(wrong, prepared.InScope);
-                var s = new Setting(accept, margin, correct, wrong, fa, feasible,
+                if (k > 0)
+                {
+                    int end = groupEnd[k - 1];
+                    for (int i = start; i < end; i++)
+                    {
+                        ref readonly var p = ref live[i];
+                        if (!(p.Gap >= margin)) continue; // ambiguous: a false reject, or a correct refusal
+                        switch (p.Kind)
+                        {
+                            case LiveKind.Correct: correct++; break;
+                            case LiveKind.Wrong: wrong++; break;
+                            default: fa++; break;
+                        }
+                    }
+                    start = end;
+                }
+                bool faOk = fa <= faAllowed;
+                bool feasible = faOk && wrong <= wrongAllowed;
+                // Over the false-accept budget: cannot beat a feasible setting and is no point of the curve.
+                if (!faOk && best.Feasible) continue;
+                var s = new Setting(accepts[k], margin, correct, wrong, fa, feasible,
                     feasible ? 0 : budgets.Violation(fa, prepared.OutOfScope, wrong, prepared.InScope));
                 if (IsBetter(s, best)) best = s;
-                if (!faOk) return;
-                for (int c = 0; c < caps.Count; c++)
+                if (!faOk) continue;
+                for (int c = 0; c < capAllowed.Length; c++)
                 {
-                    if ((double)wrong / prepared.InScope <= caps[c])
+                    if (wrong <= capAllowed[c] && correct >= bestPerCap[c].Correct && IsBetter(s with { Feasible = true, Violation = 0 }, bestPerCap[c]))
                     {
-                        var sc = s with { Feasible = true, Violation = 0 };
-                        if (IsBetter(sc, bestPerCap[c])) bestPerCap[c] = sc;
+                        bestPerCap[c] = s with { Feasible = true, Violation = 0 };
                     }
                 }
-            });
+            }
         }
 
         var notes = new List<string>();
@@ -107,34 +133,6 @@ public sealed partial class ThresholdTuner
     }
 
     /// <summary>
-    /// Sweeps the accept candidates for one margin from strict to lenient, reporting the totals (constant
-    /// exact-match contributions included) for every prefix of score groups. O(n).
-    /// </summary>
-    private static void Sweep(Prepared prepared, float margin, Action<int, int, int, int> visit)
-    {
-        int correct = prepared.ConstCorrect, wrong = prepared.ConstWrong, fa = prepared.ConstFalseAccept;
-        visit(0, correct, wrong, fa);
-        int start = 0;
-        for (int k = 0; k < prepared.GroupEnd.Length; k++)
-        {
-            int end = prepared.GroupEnd[k];
-            for (int i = start; i < end; i++)
-            {
-                ref readonly var p = ref prepared.Live[i];
-                if (!(p.Gap >= margin)) continue; // ambiguous: counts as a false reject, or as a correct refusal
-                switch (p.Kind)
-                {
-                    case LiveKind.Correct: correct++; break;
-                    case LiveKind.Wrong: wrong++; break;
-                    default: fa++; break;
-                }
-            }
-            start = end;
-            visit(k + 1, correct, wrong, fa);
-        }
-    }
-
-    /// <summary>
     /// The margins to try: the grid, plus (when enabled) one value between each pair of consecutive distinct
     /// observed gaps below the largest grid margin, thinned evenly to <see cref="TuningOptions.MaxGapMargins"/>.
     /// </summary>
@@ -145,22 +143,15 @@ public sealed partial class ThresholdTuner
         if (Options.IncludeGapMargins)
         {
             var gaps = live.Select(l => l.Gap).Where(g => float.IsFinite(g)).Distinct().Order().ToArray();
-            var between = new List<float>();
-            for (int j = 0; j + 1 < gaps.Length && gaps[j] < maxMargin; j++)
+            // Gap j and the next one bound the margins that leave gaps up to j ambiguous.
+            int usable = 0;
+            while (usable + 1 < gaps.Length && gaps[usable] < maxMargin) usable++;
+            int take = Math.Min(usable, Options.MaxGapMargins);
+            for (int t = 0; t < take; t++)
             {
-                float hi = Math.Min(gaps[j + 1], maxMargin);
-                if (hi > gaps[j]) between.Add(Between(gaps[j], hi));
+                int j = (int)((long)t * usable / take);
+                set.Add(Between(gaps[j], Math.Min(gaps[j + 1], maxMargin)));
             }
-            if (between.Count > Options.MaxGapMargins)
-            {
-                var thinned = new List<float>(Options.MaxGapMargins);
-                for (int i = 0; i < Options.MaxGapMargins; i++)
-                {
-                    thinned.Add(between[(int)((long)i * between.Count / Options.MaxGapMargins)]);
-                }
-                between = thinned;
-            }
-            set.UnionWith(between);
         }
         return set.ToArray();
     }

@@ -15,6 +15,10 @@ internal static class CliApp
         {
             CommonOptions.Verbose(),
         };
+        root.Subcommands.Add(CheckCommand.Create(context));
+        root.Subcommands.Add(BuildCommand.Create(context));
+        root.Subcommands.Add(ResolveCommand.Create(context));
+        root.Subcommands.Add(AuditCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         return root.Parse(args).Invoke(config);

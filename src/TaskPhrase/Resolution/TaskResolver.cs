@@ -86,6 +86,33 @@ public sealed partial class TaskResolver
         return new TaskResolver(generator, model, options, state);
     }
 
+    /// <summary>
+    /// Creates a resolver from a compiled index (see <see cref="TaskIndexBuilder"/>): no model forward passes. A FiLM
+    /// table stored in the index is attached.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The generator's model differs from the index's.</exception>
+    /// <exception cref="InvalidDataException">A section of the index is malformed.</exception>
+    public static TaskResolver FromIndex(TaskIndex index, IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(index);
+        var rejects = ReadMustReject(index);
+        var resolver = FromEmbeddings(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options);
+        if (index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var film))
+            resolver.UseConditioning(FilmTable.FromBytes(film.Span, null, $"{index.SourcePath} [film]"));
+        return resolver;
+    }
+
+    private static float[] ReadMustReject(TaskIndex index)
+    {
+        int expected = index.Registry.Tasks.Sum(t => t.MustReject.Count) * index.Dimensions;
+        if (!index.Sections.TryGetValue(TaskIndexBuilder.MustRejectSection, out var bytes))
+            return expected == 0 ? [] : throw new InvalidDataException($"{index.SourcePath}: index has no '{TaskIndexBuilder.MustRejectSection}' section but the registry lists look-alikes; rebuild it with 'taskphrase build'.");
+        var floats = System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray();
+        if (floats.Length != expected)
+            throw new InvalidDataException($"{index.SourcePath}: '{TaskIndexBuilder.MustRejectSection}' section holds {floats.Length} values, expected {expected}; rebuild the index.");
+        return floats;
+    }
+
     /// <summary>Replaces the registry atomically (its phrases are embedded first); calls in flight finish on the old one.</summary>
     public async Task ReloadAsync(TaskRegistry registry, CancellationToken cancellationToken = default)
     {

@@ -153,7 +153,7 @@ public class TuningBudgetSearchTests
                 previous = point.InScopeAccuracy;
                 Assert.True(point.WrongTaskRate <= point.MaxWrongTask);
                 // Each point is reproducible with the decision rule.
-                var m = TuningMetrics.Evaluate(probes, new DecisionRule(point.Accept, point.Margin));
+                var m = TuningMetrics.Evaluate(probes, new DecisionRule(point.Accept!.Value, point.Margin!.Value));
                 Assert.Equal(point.InScopeAccuracy, m.InScopeAccuracy.Rate, 12);
                 Assert.True(m.FalseAcceptRate.Rate <= budgets.MaxFalseAccept);
                 // And it is the best the oracle finds under that cap.

@@ -49,6 +49,12 @@ public sealed class ResolverOptions
     /// <summary>Whether to run the lexical hazard check (default true).</summary>
     public bool HazardCheck { get; set; } = true;
 
+    /// <summary>
+    /// Whether to correct typing slips toward the registry's vocabulary before embedding (default true; only words the
+    /// tokenizer does not know whole, one or two edits from exactly one registry word).
+    /// </summary>
+    public bool CorrectTypos { get; set; } = true;
+
     /// <summary>Whether to run the unintelligible guard (default true).</summary>
     public bool UnintelligibleGuard { get; set; } = true;
 

@@ -49,10 +49,16 @@ internal sealed record ResolverState
     /// </summary>
     public required HashSet<string>[] Anchors { get; init; }
 
-    /// <summary>Share of a task's phrases a stem must appear in to be an anchor.</summary>
+    /// <summary>Share of a task's phrases (rounded down) a stem must appear in to be an anchor.</summary>
     public const double AnchorShare = 0.5;
 
     public required HazardLexicon Hazards { get; init; }
+
+    /// <summary>Every lower-case word of the registry's phrases, titles and also_words (for typo correction).</summary>
+    public required IReadOnlySet<string> Words { get; init; }
+
+    /// <summary><see cref="Words"/> in a stable order.</summary>
+    public required IReadOnlyList<string> WordList { get; init; }
 
     /// <summary>Optional precomputed FiLM conditioning, one row per approved phrase row.</summary>
     public FilmTable? Film { get; init; }
@@ -101,12 +107,14 @@ internal sealed record ResolverState
                     stemCounts[stem] = stemCounts.GetValueOrDefault(stem) + 1;
                 cues.UnionWith(NegationCues.All(words));
             }
-            anchors[t] = stemCounts.Where(kv => kv.Value >= Math.Max(2, AnchorShare * task.Phrases.Count)).Select(kv => kv.Key).ToHashSet(StringComparer.Ordinal);
+            anchors[t] = stemCounts.Where(kv => kv.Value >= Math.Max(2, Math.Floor(AnchorShare * task.Phrases.Count))).Select(kv => kv.Key).ToHashSet(StringComparer.Ordinal);
             float norm = TensorPrimitives.Norm(centroid);
             if (norm > 0) TensorPrimitives.Divide(centroid, norm, centroid);
             negations[t] = cues;
             for (int r = 0; r < task.MustReject.Count; r++, rrow++) rejectTask[rrow] = t;
         }
+        var allWords = tasks.SelectMany(t => t.Phrases.Concat(t.AlsoWords).Append(t.Title)).SelectMany(WordStemmer.Words)
+            .Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
         var settings = registry.Settings;
         return new ResolverState
         {
@@ -124,6 +132,8 @@ internal sealed record ResolverState
             Vocabulary = vocab,
             TaskNegations = negations,
             Anchors = anchors,
+            Words = allWords.ToHashSet(StringComparer.Ordinal),
+            WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
         };
     }

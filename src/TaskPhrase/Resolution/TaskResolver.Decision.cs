@@ -8,7 +8,7 @@ namespace TaskPhrase.Resolution;
 public sealed partial class TaskResolver
 {
     /// <summary>An utterance after the steps that need no model: normalisation, empty, exact match, unintelligible.</summary>
-    private readonly record struct Prepared(string Original, string Text, bool Truncated, Resolution? Early);
+    private readonly record struct Prepared(string Original, string Text, bool Truncated, Resolution? Early, IReadOnlyList<string>? Corrections = null);
 
     private Prepared Prepare(ResolverState state, string utterance)
     {
@@ -52,6 +52,11 @@ public sealed partial class TaskResolver
             return new Prepared(utterance, text, truncated, Rejected(state, utterance, text, RejectionReason.Unintelligible, why, truncated));
         if (_options.UnintelligibleGuard && _span is null && UnintelligibleGuard.CheckLetters(text) is { } why2)
             return new Prepared(utterance, text, truncated, Rejected(state, utterance, text, RejectionReason.Unintelligible, why2, truncated));
+        if (_options.CorrectTypos && _span is not null)
+        {
+            var (corrected, corrections) = VocabularyCorrector.Correct(text, state.Words, state.WordList, _span);
+            if (corrections.Count > 0) return new Prepared(utterance, corrected, truncated, null, corrections);
+        }
         return new Prepared(utterance, text, truncated, null);
     }
 
@@ -107,6 +112,7 @@ public sealed partial class TaskResolver
             Candidates = candidates,
             Truncated = prepared.Truncated || embedTruncated,
             UncoveredWords = uncovered,
+            Corrections = prepared.Corrections ?? [],
             Guard = guard,
             RegistryHash = state.Registry.ContentHash,
             ModelId = state.Model.Id,

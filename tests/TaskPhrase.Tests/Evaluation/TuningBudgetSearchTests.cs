@@ -28,8 +28,8 @@ public class TuningBudgetSearchTests
             Assert.Equal(recomputed, result.Metrics);
             if (result.Feasible)
             {
-                Assert.True(recomputed.FalseAcceptRate.Rate <= budgets.MaxFalseAccept);
-                if (budgets.MaxWrongTask is { } cap) Assert.True(recomputed.WrongTaskRate.Rate <= cap);
+                Assert.True(recomputed.FalseAcceptRate.Value <= budgets.MaxFalseAccept);
+                if (budgets.MaxWrongTask is { } cap) Assert.True(recomputed.WrongTaskRate.Value <= cap);
             }
             Assert.InRange(result.Margin, 0f, 0.10f);
         }, iter: 200);
@@ -154,11 +154,11 @@ public class TuningBudgetSearchTests
                 Assert.True(point.WrongTaskRate <= point.MaxWrongTask);
                 // Each point is reproducible with the decision rule.
                 var m = TuningMetrics.Evaluate(probes, new DecisionRule(point.Accept!.Value, point.Margin!.Value));
-                Assert.Equal(point.InScopeAccuracy, m.InScopeAccuracy.Rate, 12);
-                Assert.True(m.FalseAcceptRate.Rate <= budgets.MaxFalseAccept);
+                Assert.Equal(point.InScopeAccuracy, m.InScopeAccuracy.Value, 12);
+                Assert.True(m.FalseAcceptRate.Value <= budgets.MaxFalseAccept);
                 // And it is the best the oracle finds under that cap.
                 var oracle = TuningOracle.Best(probes, new TuningBudgets(budgets.MaxFalseAccept, point.MaxWrongTask), TuningOptions.Default.MarginGrid);
-                Assert.Equal(oracle.Metrics.InScopeAccuracy.Rate, point.InScopeAccuracy, 12);
+                Assert.Equal(oracle.Metrics.InScopeAccuracy.Value, point.InScopeAccuracy, 12);
             }
         }, iter: 15);
     }

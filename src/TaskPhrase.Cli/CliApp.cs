@@ -19,6 +19,8 @@ internal static class CliApp
         root.Subcommands.Add(BuildCommand.Create(context));
         root.Subcommands.Add(ResolveCommand.Create(context));
         root.Subcommands.Add(AuditCommand.Create(context));
+        root.Subcommands.Add(TuneCommand.Create(context));
+        root.Subcommands.Add(ProbesCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         return root.Parse(args).Invoke(config);

@@ -1,6 +1,7 @@
 using System.Numerics.Tensors;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
+using TaskPhrase.Resolution.Scoring;
 using TaskPhrase.Text;
 
 namespace TaskPhrase.Resolution;
@@ -43,10 +44,14 @@ internal sealed class ResolverState
 
     public required HazardLexicon Hazards { get; init; }
 
+    /// <summary>The whitening (for <see cref="ScoringStrategy.Whitened"/>) or the head (for <see cref="ScoringStrategy.Head"/>); null otherwise.</summary>
+    public Whitening? Whitening { get; init; }
+    public TaskHead? Head { get; init; }
+
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
-        ReadOnlySpan<float> mustReject, ScoringStrategy scoring)
+        ReadOnlySpan<float> mustReject, ScoringStrategy scoring, LearnedScoringOptions? learned = null)
     {
         int dims = model.Dimensions;
         var tasks = registry.Tasks;
@@ -105,6 +110,8 @@ internal sealed class ResolverState
             Vocabulary = vocab,
             TaskNegations = negations,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+            Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
+            Head = scoring == ScoringStrategy.Head ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned) : null,
         };
     }
 }

@@ -51,7 +51,7 @@ internal sealed class ResolverState
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
-        ReadOnlySpan<float> mustReject, ScoringStrategy scoring, LearnedScoringOptions? learned = null)
+        ReadOnlySpan<float> mustReject, ScoringStrategy scoring, LearnedScoringOptions? learned = null, TaskHead? head = null)
     {
         int dims = model.Dimensions;
         var tasks = registry.Tasks;
@@ -111,7 +111,10 @@ internal sealed class ResolverState
             TaskNegations = negations,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
             Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
-            Head = scoring == ScoringStrategy.Head ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned) : null,
+            Head = scoring != ScoringStrategy.Head ? null
+                : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)
+                : head.TaskCount == tasks.Count && head.Dimensions == dims ? head
+                : throw new ArgumentException($"The task head has {head.TaskCount} tasks of {head.Dimensions} dimensions; the registry has {tasks.Count} of {dims}.", nameof(head)),
         };
     }
 }

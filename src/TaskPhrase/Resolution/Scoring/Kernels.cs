@@ -5,7 +5,7 @@ using System.Runtime.Intrinsics;
 namespace TaskPhrase.Resolution.Scoring;
 
 /// <summary>
-/// Vector kernels whose results are bit-identical on every CPU, so that trained scorers are reproducible:
+/// Vector kernels whose results are bit-identical on every CPU, so that fitted scorers are reproducible:
 /// the dot product always accumulates in the same sixteen lanes (two 256-bit or four 128-bit registers, whichever
 /// the CPU accelerates; lane j sums elements j, j + 16, j + 32, …) and reduces them in a fixed order; multiplies and
 /// adds are never fused. Element-wise kernels are exact per element whatever the vector width.

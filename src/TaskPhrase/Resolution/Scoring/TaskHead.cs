@@ -8,8 +8,9 @@ namespace TaskPhrase.Resolution.Scoring;
 /// </summary>
 /// <remarks>
 /// <para>Training minimises the mean cross-entropy plus (λ/2)‖W‖² (biases unpenalised) with L-BFGS from all-zero
-/// weights, visiting phrases in registry order; every kernel is deterministic (see <see cref="ToBytes"/>), so the same
-/// embeddings and options give byte-identical weights on every machine. It never sees probe suites.</para>
+/// weights, visiting phrases in registry order. Every sum runs in a fixed order whatever the CPU's vector width or
+/// the thread schedule, so the same embeddings and options give byte-identical weights run after run; across operating
+/// systems only the platform's exp and log may differ in the last bit. It never sees probe suites.</para>
 /// <para>Immutable and thread-safe.</para>
 /// </remarks>
 public sealed class TaskHead

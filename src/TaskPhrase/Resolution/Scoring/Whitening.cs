@@ -10,7 +10,8 @@ namespace TaskPhrase.Resolution.Scoring;
 /// </summary>
 /// <remarks>
 /// Immutable and thread-safe. Fitting is deterministic: the same phrase embeddings and options give bit-identical
-/// results on every machine (W = L⁻¹ from the Cholesky factor Σ = L Lᵀ; see <see cref="ToBytes"/>). With a single
+/// results on every machine (only additions, multiplications, divisions and square roots, in a fixed order;
+/// W = L⁻¹ from the Cholesky factor Σ = L Lᵀ). With a single
 /// task there is nothing to centre between, so m = 0; when the phrases do not vary at all (one phrase per task),
 /// Σ is taken as the identity.
 /// </remarks>

@@ -2,6 +2,7 @@ using System.Numerics.Tensors;
 using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
+using TaskPhrase.Resolution.Scoring;
 using TaskPhrase.Text;
 
 namespace TaskPhrase.Resolution;
@@ -63,10 +64,14 @@ internal sealed record ResolverState
     /// <summary>Optional precomputed FiLM conditioning, one row per approved phrase row.</summary>
     public FilmTable? Film { get; init; }
 
+    /// <summary>The whitening (for <see cref="ScoringStrategy.Whitened"/>) or the head (for <see cref="ScoringStrategy.Head"/>); null otherwise.</summary>
+    public Whitening? Whitening { get; init; }
+    public TaskHead? Head { get; init; }
+
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
-        ReadOnlySpan<float> mustReject, ScoringStrategy scoring)
+        ReadOnlySpan<float> mustReject, ScoringStrategy scoring, LearnedScoringOptions? learned = null, TaskHead? head = null)
     {
         int dims = model.Dimensions;
         var tasks = registry.Tasks;
@@ -135,6 +140,11 @@ internal sealed record ResolverState
             Words = allWords.ToHashSet(StringComparer.Ordinal),
             WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+            Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
+            Head = scoring != ScoringStrategy.Head ? null
+                : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)
+                : head.TaskCount == tasks.Count && head.Dimensions == dims ? head
+                : throw new ArgumentException($"The task head has {head.TaskCount} tasks of {head.Dimensions} dimensions; the registry has {tasks.Count} of {dims}.", nameof(head)),
         };
     }
 }

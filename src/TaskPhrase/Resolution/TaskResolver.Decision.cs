@@ -76,7 +76,7 @@ public sealed partial class TaskResolver
     /// <summary>Steps 5–10 of the decision procedure, given the utterance's embedding.</summary>
     private Resolution Decide(ResolverState state, Prepared prepared, ReadOnlySpan<float> vector, bool embedTruncated)
     {
-        var scores = ScoreTasks(state, vector, out var bestRow);
+        var scores = ScoreTasks(state, vector, out var bestRow, out var headLookAlike);
         var candidates = TopCandidates(state, scores, bestRow, _options.Candidates);
         int best = IndexOf(state, candidates[0].TaskId);
         var task = state.Registry.Tasks[best];
@@ -94,7 +94,8 @@ public sealed partial class TaskResolver
         var (foreignWord, foreignTask) = ForeignAnchor(state, best, uncovered);
         float phraseSim = Dot(state, vector, bestRow[best]);
         (float Sim, int Row) lookAlike = NearestMustReject(state, vector, best);
-        bool isLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim || foreignWord is not null;
+        bool closerToLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim;
+        bool isLookAlike = closerToLookAlike || headLookAlike is not null || foreignWord is not null;
         RejectionReason guard = negation is not null ? RejectionReason.Negated
             : hazard is not null ? RejectionReason.Hazard
             : isLookAlike ? RejectionReason.LookAlike
@@ -126,6 +127,8 @@ public sealed partial class TaskResolver
             return result with { Reason = RejectionReason.Hazard, HazardWord = hazard, Detail = $"harmful word '{hazard}' is not part of the vocabulary of '{task.Id}'" };
         if (foreignWord is not null)
             return result with { Reason = RejectionReason.LookAlike, Detail = $"mixes tasks: '{foreignWord}' belongs to '{foreignTask}', not to '{task.Id}'" };
+        if (headLookAlike is not null && !closerToLookAlike)
+            return result with { Reason = RejectionReason.LookAlike, Detail = $"the task head gives its look-alike class probability {headLookAlike:0.000}, at least that of '{task.Id}'" };
         if (isLookAlike)
         {
             var rejectPhrase = task.MustReject[lookAlike.Row - FirstMustRejectRow(state, best)];
@@ -198,7 +201,15 @@ public sealed partial class TaskResolver
 
     /// <summary>Scores every task; <paramref name="bestRow"/> receives each task's nearest phrase row.</summary>
     private float[] ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, out int[] bestRow)
+        => ScoreTasks(state, vector, out bestRow, out _);
+
+    /// <summary>
+    /// Scores every task; <paramref name="bestRow"/> receives each task's nearest phrase row, and
+    /// <paramref name="headLookAlike"/> the head's look-alike probability when it is at least the best task's (else null).
+    /// </summary>
+    private float[] ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, out int[] bestRow, out float? headLookAlike)
     {
+        headLookAlike = null;
         int dims = state.Dimensions, taskCount = state.TaskCount;
         var best = new float[taskCount];
         bestRow = new int[taskCount];
@@ -240,6 +251,15 @@ public sealed partial class TaskResolver
                     start = end;
                 }
                 return topk;
+            case ScoringStrategy.Whitened:
+                var whitened = new float[taskCount];
+                state.Whitening!.ScoreTasks(vector, whitened);
+                return whitened;
+            case ScoringStrategy.Head:
+                var head = new float[taskCount];
+                float reject = state.Head!.ScoreTasks(vector, head, out float bestProbability);
+                if (state.Head.HasRejectClass && reject >= bestProbability) headLookAlike = reject;
+                return head;
             default:
                 throw new InvalidOperationException($"Unknown scoring strategy {state.Scoring}.");
         }

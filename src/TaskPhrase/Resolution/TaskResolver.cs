@@ -82,7 +82,7 @@ public sealed partial class TaskResolver
         options = options?.Clone() ?? new ResolverOptions();
         if (generator.GetService(typeof(EmbeddingModelInfo)) is EmbeddingModelInfo live && (live.Sha256 != model.Sha256 || live.Dimensions != model.Dimensions))
             throw new InvalidOperationException($"The embeddings were computed with model '{model.Id}' (SHA-256 {model.Sha256}) but the generator runs '{live.Id}' (SHA-256 {live.Sha256}). Rebuild the index with this model.");
-        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, options));
+        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, options), options.Learned);
         return new TaskResolver(generator, model, options, state);
     }
 
@@ -160,7 +160,7 @@ public sealed partial class TaskResolver
     public void Reload(TaskRegistry registry, ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings)
     {
         ArgumentNullException.ThrowIfNull(registry);
-        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options));
+        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options), _options.Learned);
         Volatile.Write(ref _state, WithFilm(state, _film));
     }
 
@@ -262,7 +262,9 @@ public sealed partial class TaskResolver
             "centroid" => ScoringStrategy.Centroid,
             "top-k" => ScoringStrategy.TopK,
             "blend" => ScoringStrategy.Blend,
-            var other => throw new ArgumentException($"Unknown scoring strategy '{other}' in the registry; use best-phrase, centroid, top-k or blend."),
+            "whitened" => ScoringStrategy.Whitened,
+            "head" => ScoringStrategy.Head,
+            var other => throw new ArgumentException($"Unknown scoring strategy '{other}' in the registry; use best-phrase, centroid, top-k, blend, whitened or head."),
         };
     }
 
@@ -287,6 +289,6 @@ public sealed partial class TaskResolver
             CheckWidth(v.Length, model.Dimensions);
             v.CopyTo(i < phraseCount ? phrases.AsSpan(i * model.Dimensions) : rejects.AsSpan((i - phraseCount) * model.Dimensions));
         }
-        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options)));
+        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options), options.Learned));
     }
 }

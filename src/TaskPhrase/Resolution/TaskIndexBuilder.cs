@@ -19,6 +19,9 @@ public static class TaskIndexBuilder
     /// <summary>Index section holding the FiLM conditioning table (<see cref="FilmTable.ToBytes"/>).</summary>
     public const string FilmSection = "film";
 
+    /// <summary>Index section holding the learned task head (<see cref="Scoring.TaskHead.ToBytes"/>), for registries with <c>scoring: head</c>.</summary>
+    public const string HeadSection = "head";
+
     /// <summary>Embeds the registry's phrases and writes the index to <paramref name="path"/>.</summary>
     /// <param name="path">Output file; written atomically.</param>
     /// <param name="registry">The registry.</param>
@@ -51,6 +54,14 @@ public static class TaskIndexBuilder
             [MustRejectSection] = MemoryMarshal.AsBytes(rejects.AsSpan()).ToArray(),
         };
         if (film is not null) sections[FilmSection] = FilmTable.Build(film, phrases, dims).ToBytes();
+        if (registry.Settings.Scoring == "head")
+        {
+            // Trained once, deterministically, from the approved phrases (and must_reject as a reject class): never from probes.
+            var phraseTask = new int[phraseCount];
+            for (int t = 0, row = 0; t < registry.Tasks.Count; t++)
+                for (int p = 0; p < registry.Tasks[t].Phrases.Count; p++) phraseTask[row++] = t;
+            sections[HeadSection] = Scoring.TaskHead.Train(phrases, phraseTask, registry.Tasks.Count, rejects, dims, null).ToBytes();
+        }
         TaskIndex.Write(path, registry, model, phrases, sections);
         return TaskIndex.Load(path, model, registry.ContentHash);
     }

@@ -75,6 +75,10 @@ public sealed partial class TaskResolver
     /// <exception cref="InvalidOperationException">The generator's model differs from <paramref name="model"/>.</exception>
     public static TaskResolver FromEmbeddings(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model,
         ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings, ResolverOptions? options = null)
+        => FromEmbeddingsWithHead(registry, generator, model, phraseEmbeddings, mustRejectEmbeddings, options, head: null);
+
+    private static TaskResolver FromEmbeddingsWithHead(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model,
+        ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings, ResolverOptions? options, TaskPhrase.Resolution.Scoring.TaskHead? head)
     {
         ArgumentNullException.ThrowIfNull(registry);
         ArgumentNullException.ThrowIfNull(generator);
@@ -82,7 +86,9 @@ public sealed partial class TaskResolver
         options = options?.Clone() ?? new ResolverOptions();
         if (generator.GetService(typeof(EmbeddingModelInfo)) is EmbeddingModelInfo live && (live.Sha256 != model.Sha256 || live.Dimensions != model.Dimensions))
             throw new InvalidOperationException($"The embeddings were computed with model '{model.Id}' (SHA-256 {model.Sha256}) but the generator runs '{live.Id}' (SHA-256 {live.Sha256}). Rebuild the index with this model.");
-        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, options), options.Learned);
+        var scoring = ChooseScoring(registry, options);
+        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, scoring, options.Learned,
+            scoring == ScoringStrategy.Head ? head : null);
         return new TaskResolver(generator, model, options, state);
     }
 
@@ -96,7 +102,9 @@ public sealed partial class TaskResolver
     {
         ArgumentNullException.ThrowIfNull(index);
         var rejects = ReadMustReject(index);
-        var resolver = FromEmbeddings(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options);
+        // A head trained at build time is reused (no training at load); without one it is trained now.
+        var head = index.Sections.TryGetValue(TaskIndexBuilder.HeadSection, out var headBytes) ? TaskPhrase.Resolution.Scoring.TaskHead.FromBytes(headBytes.Span) : null;
+        var resolver = FromEmbeddingsWithHead(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options, head);
         if (index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var film))
             resolver.UseConditioning(FilmTable.FromBytes(film.Span, null, $"{index.SourcePath} [film]"));
         return resolver;

@@ -68,14 +68,14 @@ public class Clinc150FloorTests(ModelFixture fixture, ITestOutputHelper output)
         var scored = probes.Select((p, i) => ScoredProbe.From(p, res[i])).ToList();
         var tuneHalf = scored.Where((_, i) => i % 2 == 0).ToList();
         var auditHalf = scored.Where((_, i) => i % 2 == 1).ToList();
-        var tuned = new ThresholdTuner().TuneForBudgets(tuneHalf, new TuningBudgets(0.10, 0.05));
+        var tuned = new ThresholdTuner(new TuningOptions { AllowOverrides = false }).TuneForBudgets(tuneHalf, new TuningBudgets(0.10, 0.05));
         var audit = TuningMetrics.Evaluate(auditHalf, tuned.Rule);
         output.WriteLine($"tuned accept {tuned.Accept:0.000} margin {tuned.Margin:0.000}; audit half: accuracy {audit.InScopeAccuracy.Value:P1}, wrong task {audit.WrongTaskRate.Value:P1}, false accepts {audit.FalseAcceptRate.Value:P1}");
         Assert.True(tuned.Feasible);
-        // Measured when set (centroid, accept 0.383, margin 0.013): accuracy 58.9 %, wrong task 6.0 %, false accepts 14.0 %
-        // (7 of 50: the out-of-scope half is small, so its floor is loose).
-        Assert.True(audit.InScopeAccuracy.Value >= 0.56, $"in-scope accuracy {audit.InScopeAccuracy.Value:P1}");
+        // Measured when set (centroid, accept 0.378, margin 0.052): accuracy 70.7 %, wrong task 5.3 %, false accepts 12.0 %
+        // (6 of 50: the out-of-scope half is small, so its floor is loose).
+        Assert.True(audit.InScopeAccuracy.Value >= 0.68, $"in-scope accuracy {audit.InScopeAccuracy.Value:P1}");
         Assert.True(audit.FalseAcceptRate.Value <= 0.20, $"false-accept rate {audit.FalseAcceptRate.Value:P1}");
-        Assert.True(audit.WrongTaskRate.Value <= 0.08, $"wrong-task rate {audit.WrongTaskRate.Value:P1}");
+        Assert.True(audit.WrongTaskRate.Value <= 0.075, $"wrong-task rate {audit.WrongTaskRate.Value:P1}");
     }
 }

@@ -1,5 +1,6 @@
 using System.CommandLine;
 using System.Globalization;
+using System.Text.Json;
 using Spectre.Console;
 using TaskPhrase.Evaluation;
 
@@ -42,13 +43,36 @@ internal static class AuditCommand
                 AuditHtmlReport.Write(report, file, budget);
                 context.Err.WriteLine($"wrote {htmlPath}");
             }
+            // What a stricter wrong-task budget would cost on this suite (thresholds re-chosen per cap, false accepts kept
+            // at the rate the registry's current thresholds give).
+            var scored = suite.Cases.Select((c, i) => ScoredProbe.From(c, resolutions[i])).ToList();
+            var tradeOff = new ThresholdTuner().TuneForBudgets(scored, new TuningBudgets(double.IsNaN(report.FalseAcceptRate.Value) ? 0 : report.FalseAcceptRate.Value)).TradeOff;
             if (parse.GetValue(json))
             {
-                context.Out.WriteLine(AuditJson.ToJson(report, budget));
+                var node = System.Text.Json.Nodes.JsonNode.Parse(AuditJson.ToJson(report, budget))!.AsObject();
+                var curve = new System.Text.Json.Nodes.JsonArray();
+                foreach (var p in tradeOff)
+                    curve.Add(new System.Text.Json.Nodes.JsonObject
+                    {
+                        ["max_wrong_task"] = p.MaxWrongTask,
+                        ["feasible"] = p.Feasible,
+                        ["in_scope_accuracy"] = double.IsNaN(p.InScopeAccuracy) ? null : p.InScopeAccuracy,
+                        ["wrong_task_rate"] = double.IsNaN(p.WrongTaskRate) ? null : p.WrongTaskRate,
+                        ["accept"] = p.Accept,
+                        ["margin"] = p.Margin,
+                    });
+                node["wrong_task_trade_off"] = curve;
+                context.Out.WriteLine(node.ToJsonString(new JsonSerializerOptions { WriteIndented = true }));
             }
             else
             {
                 Summary(context, report);
+                var console = context.Console();
+                console.MarkupLine("[bold]wrong-task budget → best in-scope accuracy on this suite[/] (thresholds re-chosen, false accepts ≤ current rate)");
+                foreach (var p in tradeOff)
+                    console.MarkupLine(p.Feasible
+                        ? $"  ≤ {p.MaxWrongTask:P1}: {p.InScopeAccuracy:P1} (wrong task {p.WrongTaskRate:P1}, accept {p.Accept:0.000}, margin {p.Margin:0.000})"
+                        : $"  ≤ {p.MaxWrongTask:P1}: not reachable");
                 foreach (var v in violations) context.Console().MarkupLine($"[red]budget missed:[/] {Markup.Escape(v.Message)}");
             }
             return violations.Count > 0 ? ExitCodes.CheckFailed : ExitCodes.Success;

@@ -14,4 +14,14 @@ public sealed record RegistrySettings
 
     /// <summary>Built-in hazard words this registry allows (removed from the lexicon for it).</summary>
     public IReadOnlyList<string> AllowWords { get; init; } = [];
+
+    /// <summary>Value equality: the scoring name and both word lists, item by item (ordinal).</summary>
+    public bool Equals(RegistrySettings? other)
+        => other is not null
+            && Scoring == other.Scoring
+            && HazardWords.SequenceEqual(other.HazardWords, StringComparer.Ordinal)
+            && AllowWords.SequenceEqual(other.AllowWords, StringComparer.Ordinal);
+
+    /// <summary>A hash code consistent with <see cref="Equals(RegistrySettings?)"/>.</summary>
+    public override int GetHashCode() => HashCode.Combine(Scoring, HazardWords.Count, AllowWords.Count);
 }

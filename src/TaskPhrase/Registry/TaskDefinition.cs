@@ -29,4 +29,17 @@ public sealed record TaskDefinition
 
     /// <summary>Extra words (synonyms) that count as covered by this task's vocabulary in the lexical check.</summary>
     public IReadOnlyList<string> AlsoWords { get; init; } = [];
+
+    /// <summary>Value equality: every member, with the lists compared item by item (ordinal).</summary>
+    public bool Equals(TaskDefinition? other)
+        => other is not null
+            && Id == other.Id && Title == other.Title && Confirm == other.Confirm
+            && Nullable.Equals(Accept, other.Accept) && Nullable.Equals(Margin, other.Margin)
+            && Controller == other.Controller
+            && Phrases.SequenceEqual(other.Phrases, StringComparer.Ordinal)
+            && MustReject.SequenceEqual(other.MustReject, StringComparer.Ordinal)
+            && AlsoWords.SequenceEqual(other.AlsoWords, StringComparer.Ordinal);
+
+    /// <summary>A hash code consistent with <see cref="Equals(TaskDefinition?)"/>.</summary>
+    public override int GetHashCode() => HashCode.Combine(Id, Title, Confirm, Accept, Margin, Controller, Phrases.Count);
 }

@@ -16,14 +16,24 @@ public sealed class HazardLexicon
     [
         "throw", "toss", "fling", "hurl", "chuck", "lob", "hit", "strike", "smack", "slap", "whack", "bash", "bang",
         "stab", "poke", "jab", "prod", "pierce", "cut", "slice", "slash", "chop", "smash", "crush", "break", "shatter",
-        "drop", "dump", "spill", "splash", "spray", "squirt", "douse", "drench", "soak", "flood", "scald", "burn",
+        "drop", "dump", "spill", "spray", "squirt", "douse", "drench", "soak", "flood", "scald", "burn",
         "push", "shove", "punch", "kick", "knock", "ram", "squeeze", "pinch", "choke", "strangle", "yank",
         "twist", "wrench", "bend", "snap", "rip", "tear", "shake", "swing", "wave", "point", "aim", "fire", "shoot",
         "ignite", "light", "melt", "hurt", "harm", "injure", "attack", "kill", "destroy", "wreck",
-        "empty", "tip", "overturn", "topple",
+        "empty", "overturn", "topple",
     ];
 
-    /// <summary>Built-in harmful targets: body parts, people and animals an arm must not aim at.</summary>
+    /// <summary>Built-in dangerous instruments: an arm holding one of these near a person is never a routine task.</summary>
+    public static IReadOnlyList<string> BuiltInInstruments { get; } =
+    [
+        "knife", "knives", "blade", "razor", "scissors", "needle", "needles", "syringe", "skewer", "fork", "hammer",
+        "screwdriver", "saw", "axe", "lighter", "matches", "candle", "flame", "gun", "bleach", "acid", "poison",
+    ];
+
+    /// <summary>Targets that count only after a possessive ("my hand", "her hand"), since alone they are common verbs ("hand me").</summary>
+    public static IReadOnlyList<string> PossessiveTargets { get; } = ["hand", "head", "arm", "lap", "knee", "knees"];
+
+    /// <summary>Built-in harmful targets: body parts and people an arm must not aim at.</summary>
     public static IReadOnlyList<string> BuiltInTargets { get; } =
     [
         "face", "eye", "eyes", "head", "mouth", "nose", "ear", "neck", "throat", "hands", "finger", "fingers",
@@ -43,7 +53,7 @@ public sealed class HazardLexicon
     }
 
     /// <summary>The built-in lexicon: <see cref="BuiltInActions"/> and <see cref="BuiltInTargets"/>.</summary>
-    public static HazardLexicon BuiltIn { get; } = new(BuiltInActions, BuiltInTargets);
+    public static HazardLexicon BuiltIn { get; } = new(BuiltInActions, BuiltInTargets.Concat(BuiltInInstruments));
 
     /// <summary>The action words in force (matched by stem), sorted.</summary>
     public IReadOnlyList<string> Actions { get; }
@@ -74,4 +84,22 @@ public sealed class HazardLexicon
             if (_targets.Contains(w) || _actionStems.Contains(WordStemmer.Stem(w))) return w;
         return null;
     }
+
+    /// <summary>
+    /// The first possessive target ("my hand", "your head") in the utterance's word sequence whose target word is not
+    /// in <paramref name="covered"/> (the matched task's vocabulary stems), or null.
+    /// </summary>
+    public string? FindPossessiveTarget(IReadOnlyList<string> words, IReadOnlySet<string> covered)
+    {
+        ArgumentNullException.ThrowIfNull(words);
+        ArgumentNullException.ThrowIfNull(covered);
+        for (int i = 1; i < words.Count; i++)
+        {
+            if (!Possessives.Contains(words[i - 1]) || !PossessiveTargets.Contains(words[i])) continue;
+            if (!covered.Contains(WordStemmer.Stem(words[i]))) return words[i - 1] + " " + words[i];
+        }
+        return null;
+    }
+
+    private static readonly HashSet<string> Possessives = new(StringComparer.Ordinal) { "my", "your", "her", "his", "their", "someone's", "somebody's", "noor's" };
 }

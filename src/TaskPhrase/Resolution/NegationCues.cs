@@ -17,14 +17,15 @@ public static class NegationCues
     public static IReadOnlySet<string> Pairs { get; } = new HashSet<string>(StringComparer.Ordinal)
     {
         "do not", "does not", "did not", "will not", "should not", "must not", "no longer", "no more", "not anymore",
-        "leave alone", "hold off",
+        "leave alone", "hold off", "no need", "no thanks", "no thank", "not now",
     };
 
-    /// <summary>Returns the first negation cue in the word sequence, or null.</summary>
+    /// <summary>Returns the first negation cue in the word sequence, or null. A leading "no" ("no blanket thanks") counts.</summary>
     /// <param name="words">Words as given by <see cref="Text.WordStemmer.Words"/>.</param>
     public static string? Find(IReadOnlyList<string> words)
     {
         ArgumentNullException.ThrowIfNull(words);
+        if (words.Count > 1 && words[0] == "no") return "no";
         for (int i = 0; i < words.Count; i++)
         {
             if (i + 1 < words.Count)

@@ -41,6 +41,16 @@ internal sealed class ResolverState
     /// <summary>Per task: negation cues its own phrases carry.</summary>
     public required IReadOnlySet<string>[] TaskNegations { get; init; }
 
+    /// <summary>
+    /// Per task: its anchor stems — content words present in at least <see cref="AnchorShare"/> of its approved phrases
+    /// (in practice the task's object: "basil", "kettle", "blanket"). An utterance matched to one task that names
+    /// another task's anchor, uncovered by its own vocabulary, mixes two tasks and is refused as a look-alike.
+    /// </summary>
+    public required HashSet<string>[] Anchors { get; init; }
+
+    /// <summary>Share of a task's phrases a stem must appear in to be an anchor.</summary>
+    public const double AnchorShare = 0.5;
+
     public required HazardLexicon Hazards { get; init; }
 
     public int TaskCount => Registry.Tasks.Count;
@@ -64,6 +74,7 @@ internal sealed class ResolverState
         var exact = new Dictionary<string, int>(StringComparer.Ordinal);
         var vocab = new HashSet<string>[tasks.Count];
         var negations = new IReadOnlySet<string>[tasks.Count];
+        var anchors = new HashSet<string>[tasks.Count];
         int row = 0, rrow = 0;
         for (int t = 0; t < tasks.Count; t++)
         {
@@ -73,6 +84,7 @@ internal sealed class ResolverState
             vocab[t] = new HashSet<string>(StringComparer.Ordinal);
             foreach (var w in WordStemmer.Words(task.Title).Concat(task.AlsoWords.SelectMany(WordStemmer.Words)))
                 vocab[t].Add(WordStemmer.Stem(w));
+            var stemCounts = new Dictionary<string, int>(StringComparer.Ordinal);
             for (int p = 0; p < task.Phrases.Count; p++, row++)
             {
                 phraseTask[row] = t;
@@ -81,8 +93,11 @@ internal sealed class ResolverState
                 TensorPrimitives.Add(centroid, phrases.Slice(row * dims, dims), centroid);
                 var words = WordStemmer.Words(task.Phrases[p]);
                 foreach (var w in words) vocab[t].Add(WordStemmer.Stem(w));
+                foreach (var stem in words.Where(w => !StopWords.Contains(w)).Select(WordStemmer.Stem).Distinct())
+                    stemCounts[stem] = stemCounts.GetValueOrDefault(stem) + 1;
                 cues.UnionWith(NegationCues.All(words));
             }
+            anchors[t] = stemCounts.Where(kv => kv.Value >= Math.Max(2, AnchorShare * task.Phrases.Count)).Select(kv => kv.Key).ToHashSet(StringComparer.Ordinal);
             float norm = TensorPrimitives.Norm(centroid);
             if (norm > 0) TensorPrimitives.Divide(centroid, norm, centroid);
             negations[t] = cues;
@@ -104,6 +119,7 @@ internal sealed class ResolverState
             Exact = exact,
             Vocabulary = vocab,
             TaskNegations = negations,
+            Anchors = anchors,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
         };
     }

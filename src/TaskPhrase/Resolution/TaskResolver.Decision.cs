@@ -84,10 +84,11 @@ public sealed partial class TaskResolver
         var uncovered = Uncovered(state, best, words);
         string? negation = NegationCues.Find(words);
         if (negation is not null && state.TaskNegations[best].Contains(negation)) negation = null;
-        string? hazard = _options.HazardCheck ? state.Hazards.FindIn(uncovered) : null;
+        string? hazard = _options.HazardCheck ? state.Hazards.FindIn(uncovered) ?? state.Hazards.FindPossessiveTarget(words, state.Vocabulary[best]) : null;
+        var (foreignWord, foreignTask) = ForeignAnchor(state, best, uncovered);
         float phraseSim = Dot(state, vector, bestRow[best]);
         (float Sim, int Row) lookAlike = NearestMustReject(state, vector, best);
-        bool isLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim;
+        bool isLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim || foreignWord is not null;
         RejectionReason guard = negation is not null ? RejectionReason.Negated
             : hazard is not null ? RejectionReason.Hazard
             : isLookAlike ? RejectionReason.LookAlike
@@ -116,6 +117,8 @@ public sealed partial class TaskResolver
             return result with { Reason = RejectionReason.Negated, NegationCue = negation, Detail = $"negation '{negation}' that the approved phrases of '{task.Id}' do not have" };
         if (hazard is not null)
             return result with { Reason = RejectionReason.Hazard, HazardWord = hazard, Detail = $"harmful word '{hazard}' is not part of the vocabulary of '{task.Id}'" };
+        if (foreignWord is not null)
+            return result with { Reason = RejectionReason.LookAlike, Detail = $"mixes tasks: '{foreignWord}' belongs to '{foreignTask}', not to '{task.Id}'" };
         if (isLookAlike)
         {
             var rejectPhrase = task.MustReject[lookAlike.Row - FirstMustRejectRow(state, best)];
@@ -148,6 +151,18 @@ public sealed partial class TaskResolver
             if (!vocab.Contains(WordStemmer.Stem(w))) result.Add(w);
         }
         return result.ToArray();
+    }
+
+    /// <summary>An uncovered word that is another task's anchor (its object), with that task's id.</summary>
+    private static (string? Word, string? Task) ForeignAnchor(ResolverState state, int best, string[] uncovered)
+    {
+        foreach (var w in uncovered)
+        {
+            string stem = WordStemmer.Stem(w);
+            for (int t = 0; t < state.TaskCount; t++)
+                if (t != best && state.Anchors[t].Contains(stem)) return (w, state.Registry.Tasks[t].Id);
+        }
+        return (null, null);
     }
 
     private static float Dot(ResolverState state, ReadOnlySpan<float> vector, int row)

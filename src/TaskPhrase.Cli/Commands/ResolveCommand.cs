@@ -1,0 +1,83 @@
+using System.CommandLine;
+using System.Text.Json;
+using Spectre.Console;
+using TaskPhrase.Resolution;
+
+namespace TaskPhrase.Cli.Commands;
+
+/// <summary>
+/// <c>taskphrase resolve</c>: resolves utterances given as arguments, read from <c>--input</c>, or typed at a prompt.
+/// A rejection is a normal outcome (exit 0).
+/// </summary>
+internal static class ResolveCommand
+{
+    public static Command Create(CliContext context)
+    {
+        var utterances = new Argument<string[]>("utterance") { Description = "Utterances to resolve; none (on a terminal) starts a prompt.", Arity = ArgumentArity.ZeroOrMore };
+        var registry = CommonOptions.Registry();
+        var index = CommonOptions.Index();
+        var input = CommonOptions.Input();
+        var json = CommonOptions.Json();
+        var model = CommonOptions.Model();
+        var film = CommonOptions.Film();
+        var command = new Command("resolve", "Resolve utterances to approved tasks, or refuse them with a reason.")
+        {
+            utterances, registry, index, input, json, model, film,
+        };
+        command.SetAction(parse => CliRunner.Run(context, parse, () =>
+        {
+            var given = (parse.GetValue(utterances) ?? []).ToList();
+            string? inputPath = parse.GetValue(input);
+            bool asJson = parse.GetValue(json);
+            if (given.Count == 0 && inputPath is null && !context.Interactive)
+                throw new CliException("resolve: give utterances as arguments, --input FILE (- for standard input), or run it on a terminal for a prompt.");
+            using var lease = context.Model(parse.GetValue(model));
+            var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
+            var filmOption = parse.GetValue(film);
+            var conditioner = filmOption is null ? null : FilmSupport.Load(filmOption, resolver, lease);
+
+            if (given.Count > 0 || inputPath is not null)
+            {
+                var texts = given.Concat(inputPath is null ? [] : InputLines.Read(inputPath, context).Select(l => l.Text)).ToList();
+                foreach (var chunk in texts.Chunk(256))
+                {
+                    foreach (var r in resolver.ResolveMany(chunk))
+                        Print(context, conditioner is null ? r : conditioner(r), asJson);
+                }
+                return ExitCodes.Success;
+            }
+
+            var console = context.Console();
+            console.MarkupLine($"[grey]registry {resolver.Registry.ContentHash[..12]} · model {resolver.Model.Id} · empty line or Ctrl-D to quit[/]");
+            using var reader = new StreamReader(context.OpenStdin());
+            while (true)
+            {
+                console.Markup("[bold]> [/]");
+                string? line = reader.ReadLine();
+                if (string.IsNullOrEmpty(line)) return ExitCodes.Success;
+                var r = resolver.Resolve(line);
+                Print(context, conditioner is null ? r : conditioner(r), asJson);
+            }
+        }));
+        return command;
+    }
+
+    internal static void Print(CliContext context, Resolution.Resolution r, bool asJson)
+    {
+        if (asJson)
+        {
+            context.Out.WriteLine(ResolutionJson.ToJson(r));
+            return;
+        }
+        var console = context.Console();
+        string color = r.Outcome switch { ResolutionOutcome.Accepted => "green", ResolutionOutcome.Ambiguous => "yellow", _ => "red" };
+        string score = r.Score is { } s ? $"{s:0.000}" : "-";
+        string margin = r.Margin is { } m ? $"{m:0.000}" : "-";
+        string what = r.Outcome == ResolutionOutcome.Accepted
+            ? $"{r.Task!.Id} ({r.Task.Controller.Manifold}, {r.Task.Controller.LatentDims} axes){(r.Confirm ? " [bold]CONFIRM FIRST[/]" : "")}"
+            : $"{ResolutionJson.Name(r.Reason)}{(r.Task is null ? "" : $"; nearest {r.Task.Id}")}";
+        console.MarkupLine($"[{color}]{ResolutionJson.Name(r.Outcome)}[/] {Markup.Escape(r.Utterance)} → {what}  [grey]score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}[/]");
+        if (r.Detail is { } detail && r.Outcome != ResolutionOutcome.Accepted)
+            console.MarkupLine($"  [grey]{Markup.Escape(detail)}[/]");
+    }
+}

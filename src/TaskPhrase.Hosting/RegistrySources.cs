@@ -9,8 +9,5 @@ internal sealed class RegistrySources
     public TaskRegistry? Registry { get; set; }
 
     /// <summary>Reads and validates a registry file; throws with a located message when it is broken.</summary>
-    public Func<string, TaskRegistry> Loader { get; set; } = DefaultLoader;
-
-    internal static TaskRegistry DefaultLoader(string path)
-        => throw new NotSupportedException($"{path}: this build has no registry file reader; supply one with TaskPhraseBuilder.UseRegistryLoader or a registry in code with UseRegistry.");
+    public Func<string, TaskRegistry> Loader { get; set; } = path => RegistryLoader.Load(path);
 }

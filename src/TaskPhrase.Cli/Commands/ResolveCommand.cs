@@ -33,8 +33,7 @@ internal static class ResolveCommand
                 throw new CliException("resolve: give utterances as arguments, --input FILE (- for standard input), or run it on a terminal for a prompt.");
             using var lease = context.Model(parse.GetValue(model));
             var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
-            var filmOption = parse.GetValue(film);
-            var conditioner = filmOption is null ? null : FilmSupport.Load(filmOption, resolver, lease);
+            if (parse.GetValue(film) is { } filmPath) FilmSupport.Attach(filmPath, resolver);
 
             if (given.Count > 0 || inputPath is not null)
             {
@@ -42,7 +41,7 @@ internal static class ResolveCommand
                 foreach (var chunk in texts.Chunk(256))
                 {
                     foreach (var r in resolver.ResolveMany(chunk))
-                        Print(context, conditioner is null ? r : conditioner(r), asJson);
+                        Print(context, r, asJson);
                 }
                 return ExitCodes.Success;
             }
@@ -56,7 +55,7 @@ internal static class ResolveCommand
                 string? line = reader.ReadLine();
                 if (string.IsNullOrEmpty(line)) return ExitCodes.Success;
                 var r = resolver.Resolve(line);
-                Print(context, conditioner is null ? r : conditioner(r), asJson);
+                Print(context, r, asJson);
             }
         }));
         return command;

@@ -79,21 +79,8 @@ public static class ResolutionJson
         WriteStringOrNull(writer, "negation_cue", r.NegationCue);
         if (accepted && r.Conditioning is { } film)
         {
-            writer.WriteStartObject("conditioning");
-            writer.WriteStartArray("layers");
-            foreach (var layer in film.Layers)
-            {
-                writer.WriteStartObject();
-                writer.WriteStartArray("gamma");
-                foreach (var g in layer.Gamma) writer.WriteNumberValue(g);
-                writer.WriteEndArray();
-                writer.WriteStartArray("beta");
-                foreach (var b in layer.Beta) writer.WriteNumberValue(b);
-                writer.WriteEndArray();
-                writer.WriteEndObject();
-            }
-            writer.WriteEndArray();
-            writer.WriteEndObject();
+            writer.WritePropertyName("conditioning");
+            film.WriteJson(writer);
         }
         writer.WriteString("registry", r.RegistryHash);
         writer.WriteString("model", r.ModelId);

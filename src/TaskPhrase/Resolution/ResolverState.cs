@@ -1,4 +1,5 @@
 using System.Numerics.Tensors;
+using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
 using TaskPhrase.Text;
@@ -9,7 +10,7 @@ namespace TaskPhrase.Resolution;
 /// Everything a resolver needs for one registry, precomputed and immutable: the phrase matrix, centroids,
 /// look-alike vectors, the exact-match table and each task's vocabulary. Swapped atomically on reload.
 /// </summary>
-internal sealed class ResolverState
+internal sealed record ResolverState
 {
     public required TaskRegistry Registry { get; init; }
     public required EmbeddingModelInfo Model { get; init; }
@@ -52,6 +53,9 @@ internal sealed class ResolverState
     public const double AnchorShare = 0.5;
 
     public required HazardLexicon Hazards { get; init; }
+
+    /// <summary>Optional precomputed FiLM conditioning, one row per approved phrase row.</summary>
+    public FilmTable? Film { get; init; }
 
     public int TaskCount => Registry.Tasks.Count;
 

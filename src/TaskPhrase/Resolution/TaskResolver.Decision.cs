@@ -42,6 +42,7 @@ public sealed partial class TaskResolver
                 ExactMatch = true,
                 Truncated = truncated,
                 Candidates = [new TaskCandidate(task.Id, phrase, 1f)],
+                Conditioning = state.Film?.Get(row),
                 Detail = "exact match with an approved phrase",
                 RegistryHash = state.Registry.ContentHash,
                 ModelId = state.Model.Id,
@@ -131,7 +132,8 @@ public sealed partial class TaskResolver
                 Reason = RejectionReason.Ambiguous,
                 Detail = $"'{candidates[0].TaskId}' ({bestScore:0.000}) and '{candidates[1].TaskId}' ({candidates[1].Score:0.000}) are within the margin {marginNeeded:0.000}",
             };
-        return result with { Outcome = ResolutionOutcome.Accepted, Reason = RejectionReason.None, Detail = null };
+        // FiLM conditioning always comes from the matched approved phrase, never from the utterance itself.
+        return result with { Outcome = ResolutionOutcome.Accepted, Reason = RejectionReason.None, Detail = null, Conditioning = state.Film?.Get(bestRow[best]) };
     }
 
     private static int IndexOf(ResolverState state, string taskId)

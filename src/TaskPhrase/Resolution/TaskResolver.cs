@@ -1,5 +1,6 @@
 using System.Diagnostics;
 using Microsoft.Extensions.AI;
+using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
 
@@ -22,6 +23,7 @@ public sealed partial class TaskResolver
     private readonly ResolverOptions _options;
     private readonly EmbeddingModelInfo _model;
     private ResolverState _state;
+    private FilmGenerator? _film;
 
     private TaskResolver(IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model, ResolverOptions options, ResolverState state)
     {
@@ -89,8 +91,39 @@ public sealed partial class TaskResolver
     {
         ArgumentNullException.ThrowIfNull(registry);
         var (_, state) = await BuildStateAsync(registry, _generator, _options, cancellationToken).ConfigureAwait(false);
-        Volatile.Write(ref _state, state);
+        Volatile.Write(ref _state, WithFilm(state, _film));
     }
+
+    /// <summary>
+    /// Attaches a FiLM generator: the conditioning of every approved phrase is computed now (one matrix product per
+    /// phrase) and accepted resolutions carry the vectors of their matched approved phrase. Kept across reloads.
+    /// </summary>
+    /// <exception cref="ArgumentException">The generator's input width differs from the model's.</exception>
+    public void UseConditioning(FilmGenerator generator)
+    {
+        ArgumentNullException.ThrowIfNull(generator);
+        if (generator.EmbeddingDimensions != _model.Dimensions)
+            throw new ArgumentException($"The FiLM generator takes {generator.EmbeddingDimensions}-dimensional embeddings; the model gives {_model.Dimensions}.", nameof(generator));
+        _film = generator;
+        Volatile.Write(ref _state, WithFilm(Volatile.Read(ref _state), generator));
+    }
+
+    /// <summary>Attaches a precomputed conditioning table (for example from an index); it must have one row per approved phrase.</summary>
+    /// <exception cref="ArgumentException">The table's row count or width does not fit the registry.</exception>
+    public void UseConditioning(FilmTable table)
+    {
+        ArgumentNullException.ThrowIfNull(table);
+        var state = Volatile.Read(ref _state);
+        if (table.RowCount != state.PhraseTask.Length || table.EmbeddingDimensions != _model.Dimensions)
+            throw new ArgumentException($"The FiLM table has {table.RowCount} rows of {table.EmbeddingDimensions}-dimensional input; the registry has {state.PhraseTask.Length} approved phrases and the model {_model.Dimensions} dimensions. Rebuild the index.", nameof(table));
+        Volatile.Write(ref _state, state with { Film = table });
+    }
+
+    /// <summary>The conditioning table in force, if any.</summary>
+    public FilmTable? Conditioning => Volatile.Read(ref _state).Film;
+
+    private static ResolverState WithFilm(ResolverState state, FilmGenerator? generator)
+        => generator is null ? state : state with { Film = FilmTable.Build(generator, state.Phrases, state.Dimensions) };
 
     /// <summary>Synchronous form of <see cref="ReloadAsync"/>.</summary>
     public void Reload(TaskRegistry registry, CancellationToken cancellationToken = default)
@@ -101,7 +134,7 @@ public sealed partial class TaskResolver
     {
         ArgumentNullException.ThrowIfNull(registry);
         var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options));
-        Volatile.Write(ref _state, state);
+        Volatile.Write(ref _state, WithFilm(state, _film));
     }
 
     /// <summary>Resolves one utterance.</summary>

@@ -3,7 +3,7 @@ using System.Text.Json;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class ConcurrencyTests(ServiceFixture fixture)
 {
     [Fact]

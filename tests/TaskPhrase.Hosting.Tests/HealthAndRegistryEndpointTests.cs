@@ -3,7 +3,7 @@ using TaskPhrase.Registry;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class HealthAndRegistryEndpointTests(ServiceFixture fixture)
 {
     [Fact]

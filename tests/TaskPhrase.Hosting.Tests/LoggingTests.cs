@@ -3,7 +3,7 @@ using Microsoft.Extensions.Logging;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class LoggingTests(ServiceFixture fixture)
 {
     [Fact]

@@ -4,7 +4,7 @@ using TaskPhrase.Registry;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class ReloadTests(ServiceFixture fixture)
 {
     private static readonly TimeSpan Deadline = TimeSpan.FromSeconds(20);

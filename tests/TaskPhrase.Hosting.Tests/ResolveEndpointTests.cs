@@ -6,7 +6,7 @@ using TaskPhrase.Resolution;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class ResolveEndpointTests(ServiceFixture fixture)
 {
     private ServerHarness Harbor => fixture.Harbor;

@@ -10,7 +10,7 @@ using TaskPhrase.Resolution;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class ServiceCollectionExtensionsTests(ServiceFixture fixture)
 {
     private static IConfiguration Config(params (string Key, string Value)[] values)

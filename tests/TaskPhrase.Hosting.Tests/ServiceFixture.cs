@@ -4,7 +4,7 @@ namespace TaskPhrase.Hosting.Tests;
 
 /// <summary>
 /// Loads the default model once for the whole test run and starts one real server on a free loopback port
-/// serving the Harbor Street example registry. Shared by every class in <see cref="ServiceCollection"/>.
+/// serving the Harbor Street example registry. Shared by every class in <see cref="ServiceTestCollection"/>.
 /// </summary>
 public sealed class ServiceFixture : IAsyncLifetime
 {
@@ -23,7 +23,7 @@ public sealed class ServiceFixture : IAsyncLifetime
 }
 
 [CollectionDefinition(Name)]
-public sealed class ServiceCollection : ICollectionFixture<ServiceFixture>
+public sealed class ServiceTestCollection : ICollectionFixture<ServiceFixture>
 {
     public const string Name = "service";
 }

@@ -4,7 +4,7 @@ using TaskPhrase.Hosting.Tests.TestDoubles;
 
 namespace TaskPhrase.Hosting.Tests;
 
-[Collection(ServiceCollection.Name)]
+[Collection(ServiceTestCollection.Name)]
 public class TimeoutAndShutdownTests(ServiceFixture fixture)
 {
     [Fact]

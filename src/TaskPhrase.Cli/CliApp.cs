@@ -16,6 +16,7 @@ internal static class CliApp
             CommonOptions.Verbose(),
         };
         root.Subcommands.Add(EmbedCommand.Create(context));
+        root.Subcommands.Add(ServeCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         return root.Parse(args).Invoke(config);
     }

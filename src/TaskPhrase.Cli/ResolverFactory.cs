@@ -53,7 +53,7 @@ internal static class ResolverFactory
     public static TaskResolver FromIndex(TaskIndex index, ModelLease model, ResolverOptions? options)
     {
         var rejects = index.Sections.TryGetValue(MustRejectSection, out var bytes)
-            ? System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes).ToArray()
+            ? System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray()
             : [];
         return TaskResolver.FromEmbeddings(index.Registry, model.Embedder, index.Model, index.PhraseEmbeddings.Span, rejects, options);
     }

@@ -1,4 +1,5 @@
 using System.Diagnostics;
+using System.Text.Encodings.Web;
 using System.Text.Json;
 using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Http;
@@ -115,13 +116,16 @@ public static class TaskPhraseEndpointRouteBuilderExtensions
     internal static Task WriteErrorAsync(HttpContext context, int status, string code, string message)
         => WriteJsonAsync(context, status, w => ServiceJson.WriteError(w, status, code, message));
 
+    // Readable UTF-8 and quotes (the body is application/json, never embedded in HTML).
+    private static readonly JsonWriterOptions WriterOptions = new() { Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
+
     private static async Task WriteJsonAsync(HttpContext context, int status, Action<Utf8JsonWriter> write)
     {
         var response = context.Response;
         response.StatusCode = status;
         response.ContentType = "application/json; charset=utf-8";
         response.Headers.CacheControl = "no-store";
-        using (var writer = new Utf8JsonWriter(response.BodyWriter)) write(writer);
+        using (var writer = new Utf8JsonWriter(response.BodyWriter, WriterOptions)) write(writer);
         await response.BodyWriter.FlushAsync(context.RequestAborted).ConfigureAwait(false);
     }
 }

@@ -24,8 +24,8 @@ internal sealed class TaskPhraseOptionsValidator(RegistrySources sources) : IVal
             failures.Add($"No registry to serve: set {Prefix}RegistryPath to a registry YAML file or {Prefix}IndexPath to a compiled index (or call UseRegistry in code).");
         else if (hasRegistry && !File.Exists(options.RegistryPath))
             failures.Add($"{Prefix}RegistryPath: file '{Path.GetFullPath(options.RegistryPath!)}' does not exist. Point it at a registry YAML file.");
-        else if (hasIndex)
-            failures.Add(IndexSupport.Unavailable(options.IndexPath!));
+        else if (hasIndex && !File.Exists(options.IndexPath))
+            failures.Add($"{Prefix}IndexPath: file '{Path.GetFullPath(options.IndexPath!)}' does not exist. Build one with 'taskphrase build', or serve the registry file with {Prefix}RegistryPath.");
 
         if (options.ModelDirectory is { } model && !Directory.Exists(model) && !BuiltInModels.Ids.Contains(model))
             failures.Add($"{Prefix}ModelDirectory: '{Path.GetFullPath(model)}' is neither a directory nor a built-in model id ({string.Join(", ", BuiltInModels.Ids)}). Point it at a folder with model.onnx, vocab.txt and model.json, or leave it unset for the bundled model.");

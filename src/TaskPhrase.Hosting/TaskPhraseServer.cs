@@ -47,7 +47,7 @@ public sealed class TaskPhraseServer : IAsyncDisposable
         Action<WebApplicationBuilder>? configureHost = null)
     {
         options = options?.Clone() ?? new TaskPhraseServerOptions();
-        var urls = LoopbackGuard.Check(options.Urls, options.AllowRemote);
+        var urls = options.GetListenAddresses();
         var builder = WebApplication.CreateSlimBuilder(new WebApplicationOptions { Args = [], ContentRootPath = AppContext.BaseDirectory });
         builder.WebHost.UseUrls([.. urls]);
         builder.WebHost.ConfigureKestrel(kestrel =>

@@ -70,5 +70,9 @@ public sealed class TaskPhraseServerOptions
         set { ArgumentOutOfRangeException.ThrowIfLessThan(value, TimeSpan.Zero); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, TimeSpan.FromMinutes(10)); _shutdownTimeout = value; }
     }
 
+    /// <summary>The addresses of <see cref="Urls"/>, each checked: http only, no path, and loopback unless <see cref="AllowRemote"/> is set.</summary>
+    /// <exception cref="ArgumentException">An address is malformed or refused; the message says which and what to do.</exception>
+    public IReadOnlyList<string> GetListenAddresses() => LoopbackGuard.Check(Urls, AllowRemote);
+
     internal TaskPhraseServerOptions Clone() => (TaskPhraseServerOptions)MemberwiseClone();
 }

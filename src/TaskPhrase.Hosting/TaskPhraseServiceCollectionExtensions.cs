@@ -81,7 +81,10 @@ public static class TaskPhraseServiceCollectionExtensions
         if (sources.Registry is { } registry)
             return RegistryReloader.CreateAsync(registry, generator, resolverOptions, logger).GetAwaiter().GetResult();
         var loader = sources.Loader;
-        return RegistryReloader.CreateAsync(options.RegistryPath!, path => LoadedRegistry.FromRegistry(loader(path)), generator, resolverOptions,
+        Func<string, LoadedRegistry> load = options.IndexPath is { Length: > 0 }
+            ? path => LoadedRegistry.FromIndex(path, generator)
+            : path => LoadedRegistry.FromRegistry(loader(path));
+        return RegistryReloader.CreateAsync(options.IndexPath is { Length: > 0 } index ? index : options.RegistryPath!, load, generator, resolverOptions,
             options.ReloadDebounce, logger).GetAwaiter().GetResult();
     }
 }

@@ -15,6 +15,7 @@ public sealed class TempRegistry : IDisposable
             title: Water the basil on the windowsill
             controller: {manifold: pour-arc.v2, latent_dims: 2}
             phrases: [water the basil, give the basil a drink]
+            must_reject: [pour boiling water from the kettle on the basil]
           - id: fish-food
             title: Sprinkle food into the goldfish tank
             controller: {manifold: shake-over.v1, latent_dims: 1}

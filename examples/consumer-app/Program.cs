@@ -6,7 +6,7 @@ using Microsoft.Extensions.Hosting;
 using TaskPhrase.Hosting;
 using TaskPhrase.Resolution;
 
-var builder = Host.CreateApplicationBuilder(new HostApplicationSettings { Args = args, ContentRootPath = AppContext.BaseDirectory });
+var builder = Host.CreateApplicationBuilder(new HostApplicationBuilderSettings { Args = args, ContentRootPath = AppContext.BaseDirectory });
 builder.Services.AddTaskPhrase(builder.Configuration.GetSection(TaskPhraseOptions.SectionName));
 // RegistryPath in appsettings.json is relative to the app folder.
 builder.Services.PostConfigure<TaskPhraseOptions>(o =>

@@ -26,7 +26,7 @@ public class IndexTests(ServiceFixture fixture)
             var a = await fromIndex.ResolveAsync(utterance);
             var b = await fromRegistry.ResolveAsync(utterance);
             foreach (var key in new[] { "outcome", "task", "phrase", "reason", "registry", "model" })
-                Assert.Equal(b.GetProperty(key).GetRawText(), a.GetProperty(key).GetRawText());
+                Assert.True(JsonElement.DeepEquals(b.GetProperty(key), a.GetProperty(key)), $"{utterance}: {key}");
             if (b.GetProperty("score").ValueKind == JsonValueKind.Number)
                 Assert.Equal(b.GetProperty("score").GetDouble(), a.GetProperty("score").GetDouble(), 1e-4);
         }

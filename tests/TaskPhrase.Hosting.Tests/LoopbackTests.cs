@@ -2,6 +2,7 @@ namespace TaskPhrase.Hosting.Tests;
 
 public class LoopbackTests
 {
+    // 0.0.0.0 and :: are "this host, any address" (RFC 1122 §3.2.1.3, RFC 4291 §2.5.2): every interface, not loopback.
     [Theory]
     [InlineData("http://0.0.0.0:5077")]
     [InlineData("http://*:5077")]
@@ -17,6 +18,7 @@ public class LoopbackTests
         Assert.Contains("--allow-remote", e.Message);
     }
 
+    // Loopback: all of 127.0.0.0/8 (RFC 1122 §3.2.1.3), ::1 (RFC 4291 §2.5.3) and the name localhost (RFC 6761 §6.3).
     [Theory]
     [InlineData("http://127.0.0.1:5077")]
     [InlineData("http://127.4.5.6:5077")]

@@ -111,6 +111,7 @@ public class ResolveEndpointTests(ServiceFixture fixture)
     [InlineData("{\"utterance\": \"\\ud800\"}", "malformed_json")]
     public async Task Resolve_BadBody_400WithJsonError(string body, string code)
     {
+        // RFC 9110 §15.5.1: 400 Bad Request for a malformed request (RFC 8259 defines what valid JSON is).
         using var response = await Harbor.PostResolveAsync(body);
         var error = await ServerHarness.ReadJsonAsync(response, 400);
         Assert.Equal(400, error.GetProperty("status").GetInt32());
@@ -141,6 +142,7 @@ public class ResolveEndpointTests(ServiceFixture fixture)
     [InlineData("application/json; charset=utf-16")]
     public async Task Resolve_WrongContentType_415(string contentType)
     {
+        // RFC 9110 §15.5.16: 415 Unsupported Media Type when the content's media type is not accepted.
         using var response = await Harbor.PostResolveAsync("{\"utterance\": \"water the basil\"}", contentType);
         Assert.Equal("unsupported_media_type", (await ServerHarness.ReadJsonAsync(response, 415)).GetProperty("error").GetString());
     }
@@ -165,6 +167,7 @@ public class ResolveEndpointTests(ServiceFixture fixture)
     [Fact]
     public async Task Resolve_BodyOverLimit_413WithJsonError()
     {
+        // RFC 9110 §15.5.14: 413 Content Too Large when the content is larger than the server is willing to process.
         // A valid request whose body is just over the default 64 KiB limit.
         string json = JsonSerializer.Serialize(new { utterance = "water the basil " + new string('x', TaskPhraseServerOptions.DefaultMaxBodyBytes) });
         using var response = await Harbor.PostResolveAsync(json);
@@ -198,6 +201,7 @@ public class ResolveEndpointTests(ServiceFixture fixture)
     [Fact]
     public async Task UnknownPathAndWrongMethod_JsonErrors()
     {
+        // RFC 9110 §15.5.5 (404 Not Found) and §15.5.6 (405 Method Not Allowed).
         using (var missing = await Harbor.Client.GetAsync("/v1/nothing-here"))
             Assert.Equal("not_found", (await ServerHarness.ReadJsonAsync(missing, 404)).GetProperty("error").GetString());
         using var wrong = await Harbor.Client.GetAsync("/v1/resolve");

@@ -10,6 +10,7 @@ public class TimeoutAndShutdownTests(ServiceFixture fixture)
     [Fact]
     public async Task Resolve_SlowerThanRequestTimeout_503TimeoutJson()
     {
+        // RFC 9110 §15.6.4: 503 Service Unavailable, the server is temporarily unable to handle the request.
         using var file = new TempRegistry(TempRegistry.ThreeTasks);
         var slow = new SlowEmbeddingGenerator(fixture.Embedder);
         await using var server = await ServerHarness.StartAsync(slow, tp => tp.Configure(o => o.RegistryPath = file.Path),

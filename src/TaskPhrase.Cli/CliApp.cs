@@ -11,13 +11,28 @@ internal static class CliApp
 
     public static int Run(string[] args, CliContext context)
     {
+        var version = typeof(CliApp).Assembly.GetName().Version?.ToString(3) ?? "0.0.0";
         var root = new RootCommand("taskphrase: resolve spoken or typed commands to approved robot-arm tasks, and check, build and audit task registries.")
         {
             CommonOptions.Verbose(),
         };
+        root.Subcommands.Add(CheckCommand.Create(context));
+        root.Subcommands.Add(BuildCommand.Create(context));
+        root.Subcommands.Add(ResolveCommand.Create(context));
+        root.Subcommands.Add(AuditCommand.Create(context));
+        root.Subcommands.Add(TuneCommand.Create(context));
+        root.Subcommands.Add(ProbesCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
         root.Subcommands.Add(ServeCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
-        return root.Parse(args).Invoke(config);
+        var parse = root.Parse(args);
+        if (parse.Errors.Count > 0 && !args.Contains("--help") && !args.Contains("-h"))
+        {
+            // Bad usage is exit 2, with the parser's message on one line each and a pointer to --help.
+            foreach (var error in parse.Errors) context.Err.WriteLine($"error: {error.Message}");
+            context.Err.WriteLine("Run 'taskphrase --help' or 'taskphrase VERB --help' for usage.");
+            return ExitCodes.BadInput;
+        }
+        return parse.Invoke(config);
     }
 }

@@ -21,14 +21,19 @@ internal sealed class CliContext
     /// <summary>True when the caller owns embedders returned by <see cref="LoadModel"/> (tests share one).</summary>
     public bool OwnsModels { get; init; } = true;
 
-    /// <summary>A Spectre console over <see cref="Out"/>, with colour only when interactive.</summary>
-    public IAnsiConsole Console(TextWriter? writer = null) => AnsiConsole.Create(new AnsiConsoleSettings
+    /// <summary>A Spectre console over <see cref="Out"/>, with colour only when interactive; redirected output is not wrapped.</summary>
+    public IAnsiConsole Console(TextWriter? writer = null)
     {
-        Out = new AnsiConsoleOutput(writer ?? Out),
-        Ansi = Interactive ? AnsiSupport.Detect : AnsiSupport.No,
-        ColorSystem = Interactive ? ColorSystemSupport.Detect : ColorSystemSupport.NoColors,
-        Interactive = Interactive ? InteractionSupport.Detect : InteractionSupport.No,
-    });
+        var console = AnsiConsole.Create(new AnsiConsoleSettings
+        {
+            Out = new AnsiConsoleOutput(writer ?? Out),
+            Ansi = Interactive ? AnsiSupport.Detect : AnsiSupport.No,
+            ColorSystem = Interactive ? ColorSystemSupport.Detect : ColorSystemSupport.NoColors,
+            Interactive = Interactive ? InteractionSupport.Detect : InteractionSupport.No,
+        });
+        if (!Interactive) console.Profile.Width = 1000;
+        return console;
+    }
 
     /// <summary>Loads the model, turning load failures into one-line errors.</summary>
     public ModelLease Model(string? directory)

@@ -6,9 +6,6 @@ namespace TaskPhrase.Cli;
 /// <summary>Builds a resolver from <c>--registry FILE</c> or <c>--index FILE</c> and a loaded model.</summary>
 internal static class ResolverFactory
 {
-    /// <summary>Name of the index section that holds the must_reject embeddings (float32, little-endian, row-major).</summary>
-    public const string MustRejectSection = "must_reject";
-
     public static TaskRegistry LoadRegistry(string path)
     {
         try
@@ -52,9 +49,13 @@ internal static class ResolverFactory
 
     public static TaskResolver FromIndex(TaskIndex index, ModelLease model, ResolverOptions? options)
     {
-        var rejects = index.Sections.TryGetValue(MustRejectSection, out var bytes)
-            ? System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray()
-            : [];
-        return TaskResolver.FromEmbeddings(index.Registry, model.Embedder, index.Model, index.PhraseEmbeddings.Span, rejects, options);
+        try
+        {
+            return TaskResolver.FromIndex(index, model.Embedder, options);
+        }
+        catch (InvalidOperationException e)
+        {
+            throw new CliException(e.Message, ExitCodes.BadInput, e);
+        }
     }
 }

@@ -1,5 +1,6 @@
 using System.Runtime.InteropServices;
 using Microsoft.Extensions.AI;
+using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
 using TaskPhrase.Resolution;
@@ -22,13 +23,9 @@ internal abstract class LoadedRegistry
 
     public static LoadedRegistry FromRegistry(TaskRegistry registry) => new Plain(registry);
 
-    /// <summary>
-    /// An index checked against the generator's model (<see cref="TaskIndex.Load(string, EmbeddingModelInfo?)"/>).
-    /// must_reject embeddings come from the index's <c>must_reject</c> section when it has one (as <c>taskphrase build</c>
-    /// writes it); otherwise the few look-alike phrases are embedded when the index is installed.
-    /// </summary>
+    /// <summary>An index checked against the generator's model (<see cref="TaskIndex.Load(string, EmbeddingModelInfo?)"/>).</summary>
     public static LoadedRegistry FromIndex(string path, IEmbeddingGenerator<string, Embedding<float>> generator)
-        => new Indexed(TaskIndex.Load(path, generator.GetService(typeof(EmbeddingModelInfo)) as EmbeddingModelInfo), generator);
+        => new Indexed(TaskIndex.Load(path, generator.GetService(typeof(EmbeddingModelInfo)) as EmbeddingModelInfo));
 
     private sealed class Plain(TaskRegistry registry) : LoadedRegistry
     {
@@ -41,36 +38,28 @@ internal abstract class LoadedRegistry
             => resolver.ReloadAsync(registry, cancellationToken);
     }
 
-    private sealed class Indexed(TaskIndex index, IEmbeddingGenerator<string, Embedding<float>> generator) : LoadedRegistry
+    private sealed class Indexed(TaskIndex index) : LoadedRegistry
     {
-        /// <summary>Name of the index section with the must_reject embeddings (float32, little-endian, row-major).</summary>
-        private const string MustRejectSection = "must_reject";
-
         public override TaskRegistry Registry => index.Registry;
 
-        public override async Task<TaskResolver> CreateResolverAsync(IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions options, CancellationToken cancellationToken)
-        {
-            var rejects = await MustRejectAsync(cancellationToken).ConfigureAwait(false);
-            return TaskResolver.FromEmbeddings(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options);
-        }
+        public override Task<TaskResolver> CreateResolverAsync(IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions options, CancellationToken cancellationToken)
+            => Task.FromResult(TaskResolver.FromIndex(index, generator, options));
 
-        public override async Task InstallAsync(TaskResolver resolver, CancellationToken cancellationToken)
+        public override Task InstallAsync(TaskResolver resolver, CancellationToken cancellationToken)
         {
-            var rejects = await MustRejectAsync(cancellationToken).ConfigureAwait(false);
+            // Everything is read and checked before the swap; a malformed section leaves the registry in force.
+            int expected = index.Registry.Tasks.Sum(t => t.MustReject.Count) * index.Dimensions;
+            float[] rejects = index.Sections.TryGetValue(TaskIndexBuilder.MustRejectSection, out var bytes)
+                ? MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray()
+                : [];
+            if (rejects.Length != expected)
+                throw new InvalidDataException($"{index.SourcePath}: the '{TaskIndexBuilder.MustRejectSection}' section holds {rejects.Length} values, expected {expected} for the registry's look-alikes; rebuild the index with 'taskphrase build'.");
+            var film = index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var table)
+                ? FilmTable.FromBytes(table.Span, null, $"{index.SourcePath} [film]")
+                : null;
             resolver.Reload(index.Registry, index.PhraseEmbeddings.Span, rejects);
-        }
-
-        private async Task<float[]> MustRejectAsync(CancellationToken cancellationToken)
-        {
-            if (index.Sections.TryGetValue(MustRejectSection, out var bytes))
-                return MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray();
-            var texts = index.Registry.Tasks.SelectMany(t => t.MustReject).ToList();
-            if (texts.Count == 0) return [];
-            var embeddings = await generator.GenerateAsync(texts, null, cancellationToken).ConfigureAwait(false);
-            var rows = new float[texts.Count * index.Dimensions];
-            for (int i = 0; i < texts.Count; i++) embeddings[i].Vector.Span.CopyTo(rows.AsSpan(i * index.Dimensions, index.Dimensions));
-            return rows;
+            if (film is not null) resolver.UseConditioning(film);
+            return Task.CompletedTask;
         }
     }
 }
-

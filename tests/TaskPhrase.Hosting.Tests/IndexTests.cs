@@ -1,5 +1,6 @@
 using System.Text.Json;
 using TaskPhrase.Registry;
+using TaskPhrase.Resolution;
 
 namespace TaskPhrase.Hosting.Tests;
 
@@ -11,10 +12,8 @@ public class IndexTests(ServiceFixture fixture)
     {
         using var file = new TempRegistry(TempRegistry.FourTasks);
         var registry = RegistryLoader.Load(file.Path);
-        var (vectors, _) = fixture.Embedder.EmbedMany([.. registry.Tasks.SelectMany(t => t.Phrases)]);
         string indexPath = Path.Combine(file.Directory, "registry.tpx");
-        // No must_reject section: the service embeds the look-alike phrases itself.
-        TaskIndex.Write(indexPath, registry, fixture.Embedder.Model, vectors.SelectMany(v => v).ToArray());
+        await TaskIndexBuilder.BuildAsync(indexPath, registry, fixture.Embedder);
 
         await using var fromIndex = await ServerHarness.StartAsync(fixture.Embedder, tp => tp.Configure(o => o.IndexPath = indexPath));
         await using var fromRegistry = await ServerHarness.StartAsync(fixture.Embedder, tp => tp.Configure(o => o.RegistryPath = file.Path));
@@ -30,6 +29,27 @@ public class IndexTests(ServiceFixture fixture)
             if (b.GetProperty("score").ValueKind == JsonValueKind.Number)
                 Assert.Equal(b.GetProperty("score").GetDouble(), a.GetProperty("score").GetDouble(), 1e-4);
         }
+    }
+
+    [Fact]
+    public async Task Watch_IndexRebuilt_SwapsToNewRegistry()
+    {
+        using var file = new TempRegistry(TempRegistry.ThreeTasks);
+        string indexPath = Path.Combine(file.Directory, "registry.tpx");
+        await TaskIndexBuilder.BuildAsync(indexPath, RegistryLoader.Load(file.Path), fixture.Embedder);
+        await using var server = await ServerHarness.StartAsync(fixture.Embedder, tp => tp.Configure(o =>
+        {
+            o.IndexPath = indexPath;
+            o.ReloadDebounce = TimeSpan.FromMilliseconds(100);
+        }));
+        Assert.Equal("rejected", (await server.ResolveAsync("hang up my keys")).GetProperty("outcome").GetString());
+
+        file.Replace(TempRegistry.FourTasks);
+        var next = RegistryLoader.Load(file.Path);
+        await TaskIndexBuilder.BuildAsync(indexPath, next, fixture.Embedder);   // written atomically (temp file + rename)
+        Assert.True(await Poll.UntilAsync(async () => (await server.GetJsonAsync("/v1/health")).GetProperty("registry").GetString() == next.ContentHash,
+            TimeSpan.FromSeconds(20)), "the rebuilt index was not picked up");
+        Assert.Equal("keys-hook", (await server.ResolveAsync("hang up my keys")).GetProperty("task").GetString());
     }
 
     [Fact]

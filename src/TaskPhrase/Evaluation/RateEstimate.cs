@@ -32,4 +32,9 @@ public sealed record RateEstimate
 
     /// <summary>Upper end of the 95 % Wilson score interval (1 when Total is 0).</summary>
     public double CiHigh { get; }
+
+    /// <summary>Invariant text such as <c>0.9500 (19/20, 95% CI 0.7639-0.9911)</c>.</summary>
+    public override string ToString()
+        => string.Create(System.Globalization.CultureInfo.InvariantCulture,
+            $"{Value:0.0000} ({Count}/{Total}, 95% CI {CiLow:0.0000}-{CiHigh:0.0000})");
 }

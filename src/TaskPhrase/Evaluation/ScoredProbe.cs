@@ -49,4 +49,21 @@ public sealed record ScoredProbe(
             return -1f;
         }
     }
+
+    /// <summary>
+    /// Reduces a resolution of <paramref name="probe"/> to a scored probe: best and runner-up from its candidates,
+    /// <see cref="Resolution.Resolution.Guard"/> as the threshold-independent verdict.
+    /// </summary>
+    /// <exception cref="ArgumentNullException">An argument is null.</exception>
+    public static ScoredProbe From(ProbeCase probe, Resolution.Resolution resolution)
+    {
+        ArgumentNullException.ThrowIfNull(probe);
+        ArgumentNullException.ThrowIfNull(resolution);
+        var candidates = resolution.Candidates;
+        string? best = resolution.Task?.Id ?? (candidates.Count > 0 ? candidates[0].TaskId : null);
+        var runnerUp = candidates.Count > 1 ? candidates[1] : null;
+        float? expected = probe.IsInScope ? candidates.FirstOrDefault(c => c.TaskId == probe.Expect)?.Score : null;
+        return new ScoredProbe(probe, best, resolution.Score ?? -1f, runnerUp?.TaskId, runnerUp?.Score ?? -1f,
+            resolution.Guard != Resolution.RejectionReason.None, resolution.ExactMatch, expected);
+    }
 }

@@ -102,7 +102,7 @@ public sealed partial class ThresholdTuner
             tradeOff[c] = p.IsSet
                 ? new TradeOffPoint(caps[c], true, (double)p.Correct / prepared.InScope, (double)p.Wrong / prepared.InScope,
                     (double)p.FalseAccept / prepared.OutOfScope, p.Accept, p.Margin)
-                : new TradeOffPoint(caps[c], false, 0, 0, 0, float.NaN, float.NaN);
+                : new TradeOffPoint(caps[c], false, 0, 0, 0, null, null);
         }
         return new TuningResult
         {

@@ -10,7 +10,7 @@ namespace TaskPhrase.Evaluation;
 /// <param name="InScopeAccuracy">Best in-scope accuracy under the cap (0 when infeasible).</param>
 /// <param name="WrongTaskRate">Wrong-task rate of that setting.</param>
 /// <param name="FalseAcceptRate">False-accept rate of that setting.</param>
-/// <param name="Accept">Accept threshold of that setting (NaN when infeasible).</param>
-/// <param name="Margin">Margin of that setting (NaN when infeasible).</param>
+/// <param name="Accept">Accept threshold of that setting; null when infeasible.</param>
+/// <param name="Margin">Margin of that setting; null when infeasible.</param>
 public sealed record TradeOffPoint(double MaxWrongTask, bool Feasible, double InScopeAccuracy, double WrongTaskRate,
-    double FalseAcceptRate, float Accept, float Margin);
+    double FalseAcceptRate, float? Accept, float? Margin);

@@ -11,10 +11,10 @@ public sealed record TuningMetrics
     {
         InScope = inScope;
         OutOfScope = outOfScope;
-        InScopeAccuracy = new TuningRate(correct, inScope);
-        WrongTaskRate = new TuningRate(wrong, inScope);
-        FalseRejectRate = new TuningRate(falseReject, inScope);
-        FalseAcceptRate = new TuningRate(falseAccept, outOfScope);
+        InScopeAccuracy = new RateEstimate(correct, inScope);
+        WrongTaskRate = new RateEstimate(wrong, inScope);
+        FalseRejectRate = new RateEstimate(falseReject, inScope);
+        FalseAcceptRate = new RateEstimate(falseAccept, outOfScope);
     }
 
     /// <summary>Number of in-scope probes (expecting a task).</summary>
@@ -24,16 +24,16 @@ public sealed record TuningMetrics
     public int OutOfScope { get; }
 
     /// <summary>In-scope probes accepted as the expected task / in-scope probes.</summary>
-    public TuningRate InScopeAccuracy { get; }
+    public RateEstimate InScopeAccuracy { get; }
 
     /// <summary>In-scope probes accepted as another task / in-scope probes (the dangerous error).</summary>
-    public TuningRate WrongTaskRate { get; }
+    public RateEstimate WrongTaskRate { get; }
 
     /// <summary>In-scope probes rejected or ambiguous / in-scope probes.</summary>
-    public TuningRate FalseRejectRate { get; }
+    public RateEstimate FalseRejectRate { get; }
 
     /// <summary>Out-of-scope probes accepted as any task / out-of-scope probes.</summary>
-    public TuningRate FalseAcceptRate { get; }
+    public RateEstimate FalseAcceptRate { get; }
 
     /// <summary>Applies <paramref name="rule"/> to every probe and counts the outcomes.</summary>
     /// <exception cref="ArgumentNullException">An argument is null.</exception>

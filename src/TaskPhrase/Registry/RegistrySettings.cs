@@ -6,7 +6,7 @@ public sealed record RegistrySettings
     /// <summary>No overrides: built-in scoring and hazard lexicon.</summary>
     public static RegistrySettings Default { get; } = new();
 
-    /// <summary>Scoring strategy name (<c>best-phrase</c>, <c>centroid</c>, <c>top-k</c>, <c>mahalanobis</c>), or null for the built-in default.</summary>
+    /// <summary>Scoring strategy name (<c>centroid</c>, <c>best-phrase</c>, <c>top-k</c>, <c>blend</c>, <c>whitened</c> — cosine after Mahalanobis-style whitening with a Ledoit–Wolf shrinkage covariance — or <c>head</c>, a learned softmax head), or null for the built-in default.</summary>
     public string? Scoring { get; init; }
 
     /// <summary>Extra hazard words, added to the built-in hazard lexicon.</summary>

@@ -17,7 +17,7 @@ internal sealed partial class RegistryValidator
     internal static readonly string[] ControllerKeys = ["manifold", "latent_dims", "decoder"];
 
     /// <summary>The scoring strategy names a registry may give.</summary>
-    internal static readonly string[] ScoringNames = ["best-phrase", "centroid", "top-k", "mahalanobis"];
+    internal static readonly string[] ScoringNames = ["best-phrase", "centroid", "top-k", "blend", "whitened", "head"];
 
     /// <summary>The validated content of a registry, ready to be hashed.</summary>
     internal sealed record Parts(IReadOnlyList<TaskDefinition> Tasks, RegistryDefaults Defaults, string? ModelId, RegistrySettings Settings);
@@ -121,7 +121,7 @@ internal sealed partial class RegistryValidator
         map.TryGet("scoring", out _, out var value);
         string? suggestion = EditDistance.Suggest(scoring, ScoringNames);
         _bag.Error(RegistryDiagnosticCodes.UnknownScoring, value.Position,
-            $"'{scoring}' is not a scoring strategy{(suggestion is null ? "" : $"; did you mean '{suggestion}'?")} Use one of: {string.Join(", ", ScoringNames)}.");
+            $"'{scoring}' is not a scoring strategy{(suggestion is null ? "" : $"; did you mean '{suggestion}'?")}. Use one of: {string.Join(", ", ScoringNames)}.");
         return null;
     }
 

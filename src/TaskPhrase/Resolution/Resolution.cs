@@ -54,6 +54,12 @@ public sealed record Resolution
     /// <summary>Content words of the utterance that the matched task's vocabulary does not cover.</summary>
     public IReadOnlyList<string> UncoveredWords { get; init; } = [];
 
+    /// <summary>
+    /// Typing slips corrected toward the registry's vocabulary before embedding (e.g. <c>bazil → basil</c>);
+    /// <see cref="Normalized"/> then holds the corrected text that was embedded.
+    /// </summary>
+    public IReadOnlyList<string> Corrections { get; init; } = [];
+
     /// <summary>The hazard word that caused a <see cref="RejectionReason.Hazard"/> rejection, if any.</summary>
     public string? HazardWord { get; init; }
 

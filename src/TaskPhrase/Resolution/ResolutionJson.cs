@@ -75,6 +75,9 @@ public static class ResolutionJson
         writer.WriteStartArray("uncovered_words");
         foreach (var w in r.UncoveredWords) writer.WriteStringValue(w);
         writer.WriteEndArray();
+        writer.WriteStartArray("corrections");
+        foreach (var c in r.Corrections) writer.WriteStringValue(c);
+        writer.WriteEndArray();
         WriteStringOrNull(writer, "hazard_word", r.HazardWord);
         WriteStringOrNull(writer, "negation_cue", r.NegationCue);
         if (accepted && r.Conditioning is { } film)

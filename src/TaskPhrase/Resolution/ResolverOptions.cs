@@ -1,3 +1,5 @@
+using TaskPhrase.Resolution.Scoring;
+
 namespace TaskPhrase.Resolution;
 
 /// <summary>Settings of a <see cref="TaskResolver"/>. Validated when set; copied at creation.</summary>
@@ -6,6 +8,7 @@ public sealed class ResolverOptions
     private int _topK = 3;
     private int _candidates = 5;
     private int _maxInputChars = 1000;
+    private LearnedScoringOptions _learned = LearnedScoringOptions.Default;
 
     /// <summary>Scoring strategy; null uses the registry's <c>scoring</c> key, else <see cref="DefaultScoring"/>.</summary>
     public ScoringStrategy? Scoring { get; set; }
@@ -46,8 +49,22 @@ public sealed class ResolverOptions
     /// <summary>Override of the margin for every task; null keeps the registry's.</summary>
     public float? MarginOverride { get; set; }
 
+    /// <summary>Settings of the whitening and the learned head (<see cref="ScoringStrategy.Whitened"/>, <see cref="ScoringStrategy.Head"/>).</summary>
+    /// <exception cref="ArgumentNullException">Set to null.</exception>
+    public LearnedScoringOptions Learned
+    {
+        get => _learned;
+        set => _learned = value ?? throw new ArgumentNullException(nameof(Learned));
+    }
+
     /// <summary>Whether to run the lexical hazard check (default true).</summary>
     public bool HazardCheck { get; set; } = true;
+
+    /// <summary>
+    /// Whether to correct typing slips toward the registry's vocabulary before embedding (default true; only words the
+    /// tokenizer does not know whole, one or two edits from exactly one registry word).
+    /// </summary>
+    public bool CorrectTypos { get; set; } = true;
 
     /// <summary>Whether to run the unintelligible guard (default true).</summary>
     public bool UnintelligibleGuard { get; set; } = true;

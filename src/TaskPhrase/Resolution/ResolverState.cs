@@ -2,6 +2,7 @@ using System.Numerics.Tensors;
 using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
+using TaskPhrase.Resolution.Scoring;
 using TaskPhrase.Text;
 
 namespace TaskPhrase.Resolution;
@@ -49,18 +50,28 @@ internal sealed record ResolverState
     /// </summary>
     public required HashSet<string>[] Anchors { get; init; }
 
-    /// <summary>Share of a task's phrases a stem must appear in to be an anchor.</summary>
+    /// <summary>Share of a task's phrases (rounded down) a stem must appear in to be an anchor.</summary>
     public const double AnchorShare = 0.5;
 
     public required HazardLexicon Hazards { get; init; }
 
+    /// <summary>Every lower-case word of the registry's phrases, titles and also_words (for typo correction).</summary>
+    public required IReadOnlySet<string> Words { get; init; }
+
+    /// <summary><see cref="Words"/> in a stable order.</summary>
+    public required IReadOnlyList<string> WordList { get; init; }
+
     /// <summary>Optional precomputed FiLM conditioning, one row per approved phrase row.</summary>
     public FilmTable? Film { get; init; }
+
+    /// <summary>The whitening (for <see cref="ScoringStrategy.Whitened"/>) or the head (for <see cref="ScoringStrategy.Head"/>); null otherwise.</summary>
+    public Whitening? Whitening { get; init; }
+    public TaskHead? Head { get; init; }
 
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
-        ReadOnlySpan<float> mustReject, ScoringStrategy scoring)
+        ReadOnlySpan<float> mustReject, ScoringStrategy scoring, LearnedScoringOptions? learned = null, TaskHead? head = null)
     {
         int dims = model.Dimensions;
         var tasks = registry.Tasks;
@@ -101,12 +112,14 @@ internal sealed record ResolverState
                     stemCounts[stem] = stemCounts.GetValueOrDefault(stem) + 1;
                 cues.UnionWith(NegationCues.All(words));
             }
-            anchors[t] = stemCounts.Where(kv => kv.Value >= Math.Max(2, AnchorShare * task.Phrases.Count)).Select(kv => kv.Key).ToHashSet(StringComparer.Ordinal);
+            anchors[t] = stemCounts.Where(kv => kv.Value >= Math.Max(2, Math.Floor(AnchorShare * task.Phrases.Count))).Select(kv => kv.Key).ToHashSet(StringComparer.Ordinal);
             float norm = TensorPrimitives.Norm(centroid);
             if (norm > 0) TensorPrimitives.Divide(centroid, norm, centroid);
             negations[t] = cues;
             for (int r = 0; r < task.MustReject.Count; r++, rrow++) rejectTask[rrow] = t;
         }
+        var allWords = tasks.SelectMany(t => t.Phrases.Concat(t.AlsoWords).Append(t.Title)).SelectMany(WordStemmer.Words)
+            .Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
         var settings = registry.Settings;
         return new ResolverState
         {
@@ -124,7 +137,14 @@ internal sealed record ResolverState
             Vocabulary = vocab,
             TaskNegations = negations,
             Anchors = anchors,
+            Words = allWords.ToHashSet(StringComparer.Ordinal),
+            WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+            Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
+            Head = scoring != ScoringStrategy.Head ? null
+                : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)
+                : head.TaskCount == tasks.Count && head.Dimensions == dims ? head
+                : throw new ArgumentException($"The task head has {head.TaskCount} tasks of {head.Dimensions} dimensions; the registry has {tasks.Count} of {dims}.", nameof(head)),
         };
     }
 }

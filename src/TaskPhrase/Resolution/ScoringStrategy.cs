@@ -14,4 +14,17 @@ public enum ScoringStrategy
 
     /// <summary>Average of best-phrase and centroid scores: robust to one stray phrase, sharp on close wordings.</summary>
     Blend,
+
+    /// <summary>
+    /// Cosine to the task centroid after whitening with the approved phrases' shrunk covariance
+    /// (see <see cref="Scoring.Whitening"/>; settings in <see cref="ResolverOptions.Learned"/>).
+    /// </summary>
+    Whitened,
+
+    /// <summary>
+    /// A learned task head (see <see cref="Scoring.TaskHead"/>): the geometric mean of the head's probability and the
+    /// centroid cosine; the head's look-alike class, when it wins, rejects as a look-alike. Thresholds tuned
+    /// for cosine strategies do not carry over: tune <c>accept</c> and <c>margin</c> for it.
+    /// </summary>
+    Head,
 }

@@ -75,6 +75,10 @@ public sealed partial class TaskResolver
     /// <exception cref="InvalidOperationException">The generator's model differs from <paramref name="model"/>.</exception>
     public static TaskResolver FromEmbeddings(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model,
         ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings, ResolverOptions? options = null)
+        => FromEmbeddingsWithHead(registry, generator, model, phraseEmbeddings, mustRejectEmbeddings, options, head: null);
+
+    private static TaskResolver FromEmbeddingsWithHead(TaskRegistry registry, IEmbeddingGenerator<string, Embedding<float>> generator, EmbeddingModelInfo model,
+        ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings, ResolverOptions? options, TaskPhrase.Resolution.Scoring.TaskHead? head)
     {
         ArgumentNullException.ThrowIfNull(registry);
         ArgumentNullException.ThrowIfNull(generator);
@@ -82,8 +86,39 @@ public sealed partial class TaskResolver
         options = options?.Clone() ?? new ResolverOptions();
         if (generator.GetService(typeof(EmbeddingModelInfo)) is EmbeddingModelInfo live && (live.Sha256 != model.Sha256 || live.Dimensions != model.Dimensions))
             throw new InvalidOperationException($"The embeddings were computed with model '{model.Id}' (SHA-256 {model.Sha256}) but the generator runs '{live.Id}' (SHA-256 {live.Sha256}). Rebuild the index with this model.");
-        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, options));
+        var scoring = ChooseScoring(registry, options);
+        var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, scoring, options.Learned,
+            scoring == ScoringStrategy.Head ? head : null);
         return new TaskResolver(generator, model, options, state);
+    }
+
+    /// <summary>
+    /// Creates a resolver from a compiled index (see <see cref="TaskIndexBuilder"/>): no model forward passes. A FiLM
+    /// table stored in the index is attached.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The generator's model differs from the index's.</exception>
+    /// <exception cref="InvalidDataException">A section of the index is malformed.</exception>
+    public static TaskResolver FromIndex(TaskIndex index, IEmbeddingGenerator<string, Embedding<float>> generator, ResolverOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(index);
+        var rejects = ReadMustReject(index);
+        // A head trained at build time is reused (no training at load); without one it is trained now.
+        var head = index.Sections.TryGetValue(TaskIndexBuilder.HeadSection, out var headBytes) ? TaskPhrase.Resolution.Scoring.TaskHead.FromBytes(headBytes.Span) : null;
+        var resolver = FromEmbeddingsWithHead(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options, head);
+        if (index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var film))
+            resolver.UseConditioning(FilmTable.FromBytes(film.Span, null, $"{index.SourcePath} [film]"));
+        return resolver;
+    }
+
+    private static float[] ReadMustReject(TaskIndex index)
+    {
+        int expected = index.Registry.Tasks.Sum(t => t.MustReject.Count) * index.Dimensions;
+        if (!index.Sections.TryGetValue(TaskIndexBuilder.MustRejectSection, out var bytes))
+            return expected == 0 ? [] : throw new InvalidDataException($"{index.SourcePath}: index has no '{TaskIndexBuilder.MustRejectSection}' section but the registry lists look-alikes; rebuild it with 'taskphrase build'.");
+        var floats = System.Runtime.InteropServices.MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray();
+        if (floats.Length != expected)
+            throw new InvalidDataException($"{index.SourcePath}: '{TaskIndexBuilder.MustRejectSection}' section holds {floats.Length} values, expected {expected}; rebuild the index.");
+        return floats;
     }
 
     /// <summary>Replaces the registry atomically (its phrases are embedded first); calls in flight finish on the old one.</summary>
@@ -133,7 +168,7 @@ public sealed partial class TaskResolver
     public void Reload(TaskRegistry registry, ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings)
     {
         ArgumentNullException.ThrowIfNull(registry);
-        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options));
+        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options), _options.Learned);
         Volatile.Write(ref _state, WithFilm(state, _film));
     }
 
@@ -235,7 +270,9 @@ public sealed partial class TaskResolver
             "centroid" => ScoringStrategy.Centroid,
             "top-k" => ScoringStrategy.TopK,
             "blend" => ScoringStrategy.Blend,
-            var other => throw new ArgumentException($"Unknown scoring strategy '{other}' in the registry; use best-phrase, centroid, top-k or blend."),
+            "whitened" => ScoringStrategy.Whitened,
+            "head" => ScoringStrategy.Head,
+            var other => throw new ArgumentException($"Unknown scoring strategy '{other}' in the registry; use best-phrase, centroid, top-k, blend, whitened or head."),
         };
     }
 
@@ -260,6 +297,6 @@ public sealed partial class TaskResolver
             CheckWidth(v.Length, model.Dimensions);
             v.CopyTo(i < phraseCount ? phrases.AsSpan(i * model.Dimensions) : rejects.AsSpan((i - phraseCount) * model.Dimensions));
         }
-        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options)));
+        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options), options.Learned));
     }
 }

@@ -15,6 +15,9 @@ public static class UnintelligibleGuard
     {
         ArgumentNullException.ThrowIfNull(text);
         if (CheckLetters(text) is { } why) return why;
+        var words = Text.WordStemmer.Words(text);
+        if (words.Count >= 2 && words.Distinct(StringComparer.Ordinal).Count() == 1)
+            return $"one word repeated {words.Count} times";
         if (stats.Pieces > 0 && stats.UnknownPieces * 2 >= stats.Pieces)
             return $"{stats.UnknownPieces} of {stats.Pieces} word pieces are unknown to the model";
         if (stats.AlphabeticWords == 0)

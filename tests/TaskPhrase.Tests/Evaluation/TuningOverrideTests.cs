@@ -108,8 +108,8 @@ public class TuningOverrideTests
             var m = TuningMetrics.Evaluate(probes, result.Rule);
             Assert.Equal(m, result.Metrics);
             if (!result.Feasible) { Assert.Empty(result.AcceptOverrides); return; }
-            Assert.True(m.FalseAcceptRate.Rate <= budgets.MaxFalseAccept);
-            if (budgets.MaxWrongTask is { } cap) Assert.True(m.WrongTaskRate.Rate <= cap);
+            Assert.True(m.FalseAcceptRate.Value <= budgets.MaxFalseAccept);
+            if (budgets.MaxWrongTask is { } cap) Assert.True(m.WrongTaskRate.Value <= cap);
             if (result.AcceptOverrides.Count == 0) { Assert.Equal(global.Metrics, result.Metrics); return; }
             Interlocked.Increment(ref withAny);
             Assert.True(m.InScopeAccuracy.Count > global.Metrics.InScopeAccuracy.Count, "an override must raise accuracy");

@@ -1,0 +1,97 @@
+using System.CommandLine;
+using System.Globalization;
+using Spectre.Console;
+using TaskPhrase.Evaluation;
+
+namespace TaskPhrase.Cli.Commands;
+
+/// <summary>
+/// <c>taskphrase audit</c>: runs a probe suite against a registry or index and reports the audit metrics
+/// (terminal table, <c>--json</c>, <c>--html</c>). A missed budget exits 1.
+/// </summary>
+internal static class AuditCommand
+{
+    public static Command Create(CliContext context)
+    {
+        var registry = CommonOptions.Registry();
+        var index = CommonOptions.Index();
+        var probes = new Option<string>("--probes") { Description = "Probe suite CSV (header utterance,expect[,kind,note]).", Required = true };
+        var json = CommonOptions.Json();
+        var html = new Option<string?>("--html") { Description = "Also write a self-contained HTML report with charts to FILE." };
+        var model = CommonOptions.Model();
+        var maxFalseAccept = RateOption("--max-false-accept", "Fail (exit 1) when the false-accept rate is above R (0..1).");
+        var maxWrongTask = RateOption("--max-wrong-task", "Fail (exit 1) when the wrong-task rate is above R (0..1).");
+        var minAccuracy = RateOption("--min-accuracy", "Fail (exit 1) when in-scope accuracy is below R (0..1).");
+        var command = new Command("audit", "Run a probe suite and report accuracy, false accepts and wrong-task rates with 95 % Wilson intervals.")
+        {
+            registry, index, probes, json, html, model, maxFalseAccept, maxWrongTask, minAccuracy,
+        };
+        command.SetAction(parse => CliRunner.Run(context, parse, () =>
+        {
+            using var lease = context.Model(parse.GetValue(model));
+            var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
+            string probesPath = parse.GetValue(probes)!;
+            var suite = ProbeRunner.LoadSuite(probesPath, resolver.Registry);
+            var resolutions = ProbeRunner.ResolveAll(context, resolver, suite.Cases);
+            var report = AuditEvaluator.Evaluate(suite.Cases, resolutions, AuditContext.Create(resolver.Registry, resolver.Model, suite, DateTimeOffset.UtcNow));
+            var budget = new AuditBudget(parse.GetValue(maxFalseAccept), parse.GetValue(maxWrongTask), parse.GetValue(minAccuracy));
+            var violations = report.CheckBudgets(budget);
+            if (parse.GetValue(html) is { } htmlPath)
+            {
+                using var file = new StreamWriter(htmlPath);
+                AuditHtmlReport.Write(report, file, budget);
+                context.Err.WriteLine($"wrote {htmlPath}");
+            }
+            if (parse.GetValue(json))
+            {
+                context.Out.WriteLine(AuditJson.ToJson(report, budget));
+            }
+            else
+            {
+                Summary(context, report);
+                foreach (var v in violations) context.Console().MarkupLine($"[red]budget missed:[/] {Markup.Escape(v.Message)}");
+            }
+            return violations.Count > 0 ? ExitCodes.CheckFailed : ExitCodes.Success;
+        }));
+        return command;
+    }
+
+    internal static Option<double?> RateOption(string name, string description)
+    {
+        var option = new Option<double?>(name) { Description = description };
+        option.Validators.Add(result =>
+        {
+            if (result.GetValueOrDefault<double?>() is { } v && (v < 0 || v > 1 || double.IsNaN(v)))
+                result.AddError($"{name} must be a rate between 0 and 1 (e.g. 0.05 for 5 %), not {v.ToString(CultureInfo.InvariantCulture)}.");
+        });
+        return option;
+    }
+
+    private static void Summary(CliContext context, AuditReport report)
+    {
+        var console = context.Console();
+        var c = report.Context;
+        console.MarkupLine($"[bold]audit[/] {Markup.Escape(c.SuiteName)} · registry {c.RegistryHash[..12]} · model {Markup.Escape(c.ModelId)} · accept {c.AcceptThreshold:0.00} margin {c.Margin:0.00}");
+        var table = new Table().AddColumns("metric", "value", "count", "95 % interval");
+        void Row(string name, RateEstimate r) => table.AddRow(name, $"{r.Value:P1}", $"{r.Count}/{r.Total}", $"{r.CiLow:P1} – {r.CiHigh:P1}");
+        Row("in_scope_accuracy", report.InScopeAccuracy);
+        Row("wrong_task_rate", report.WrongTaskRate);
+        Row("false_reject_rate", report.FalseRejectRate);
+        Row("false_accept_rate", report.FalseAcceptRate);
+        Row("oos_recall", report.OosRecall);
+        Row("ambiguity_rate", report.AmbiguityRate);
+        table.AddRow("auroc", report.Auroc.ToString("0.000", CultureInfo.InvariantCulture), "", "");
+        table.AddRow("fpr_at_95_tpr", report.FprAt95Tpr.ToString("0.000", CultureInfo.InvariantCulture), "", "");
+        console.Write(table);
+        if (report.ByKind.Count > 0)
+        {
+            var kinds = new Table().AddColumns("kind", "probes", "correct", "rate");
+            foreach (var k in report.ByKind) kinds.AddRow(Markup.Escape(k.Kind ?? "(none)"), k.Probes.ToString(CultureInfo.InvariantCulture), k.Correct.ToString(CultureInfo.InvariantCulture), $"{k.Rate.Value:P1}");
+            console.Write(kinds);
+        }
+        foreach (var w in report.WorstFalseAccepts.Take(5))
+            console.MarkupLine($"[red]false accept[/] {Markup.Escape(w.Utterance)} → {Markup.Escape(w.Got)} ({w.Score:0.000})");
+        foreach (var w in report.WorstWrongTask.Take(5))
+            console.MarkupLine($"[red]wrong task[/] {Markup.Escape(w.Utterance)} → {Markup.Escape(w.Got)}, expected {Markup.Escape(w.Expected)} ({w.Score:0.000})");
+    }
+}

@@ -1,0 +1,101 @@
+using System.CommandLine;
+using System.Text.Json;
+using Spectre.Console;
+using TaskPhrase.Registry;
+using TaskPhrase.Resolution;
+
+namespace TaskPhrase.Cli.Commands;
+
+/// <summary><c>taskphrase check</c>: validates and lints a registry. Exit 1 when it has errors.</summary>
+internal static class CheckCommand
+{
+    public static Command Create(CliContext context)
+    {
+        var registry = CommonOptions.Registry();
+        registry.Required = true;
+        var json = CommonOptions.Json();
+        var model = CommonOptions.Model();
+        var noLint = new Option<bool>("--no-lint") { Description = "Validate only; skip the lint checks that need the model." };
+        var command = new Command("check", "Validate a registry (errors with file, line and column) and lint it for task authors.") { registry, json, model, noLint };
+        command.SetAction(parse => CliRunner.Run(context, parse, () =>
+        {
+            string path = parse.GetValue(registry)!;
+            if (!File.Exists(path)) throw new CliException($"{path}: registry file not found.");
+            var result = RegistryLoader.TryLoad(path);
+            var lint = new List<LintWarning>();
+            if (result.Registry is { } loaded)
+            {
+                lint.AddRange(HazardLint.Check(loaded));
+                if (!parse.GetValue(noLint))
+                {
+                    using var lease = context.Model(parse.GetValue(model));
+                    lint.AddRange(RegistryLinter.LintAsync(loaded, lease.Embedder).GetAwaiter().GetResult());
+                }
+            }
+            var errors = result.Errors.ToList();
+            if (parse.GetValue(json)) WriteJson(context, path, result, lint);
+            else WriteHuman(context, path, result, lint);
+            return errors.Count > 0 ? ExitCodes.CheckFailed : ExitCodes.Success;
+        }));
+        return command;
+    }
+
+    private static void WriteHuman(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint)
+    {
+        foreach (var d in result.Diagnostics) context.Out.WriteLine(d.ToString());
+        foreach (var w in lint) context.Out.WriteLine($"{path}: {w}");
+        var console = context.Console();
+        int errors = result.Errors.Count();
+        if (result.Registry is { } r)
+            console.MarkupLine($"[green]{Markup.Escape(path)}: {r.Tasks.Count} tasks, {r.Tasks.Sum(t => t.Phrases.Count)} phrases, {r.Tasks.Sum(t => t.MustReject.Count)} look-alikes; hash {r.ContentHash}[/]");
+        console.MarkupLine(errors > 0
+            ? $"[red]{errors} error(s)[/], {result.Warnings.Count() + lint.Count} warning(s)"
+            : $"no errors, {result.Warnings.Count() + lint.Count} warning(s)");
+    }
+
+    private static void WriteJson(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint)
+    {
+        using var writer = new Utf8JsonWriter(CliRunner.StdoutStream(context), new JsonWriterOptions { Indented = true });
+        writer.WriteStartObject();
+        writer.WriteString("registry_file", path);
+        writer.WriteBoolean("valid", result.Succeeded);
+        if (result.Registry is { } r)
+        {
+            writer.WriteString("registry", r.ContentHash);
+            writer.WriteNumber("tasks", r.Tasks.Count);
+            writer.WriteNumber("phrases", r.Tasks.Sum(t => t.Phrases.Count));
+        }
+        writer.WriteStartArray("errors");
+        foreach (var d in result.Diagnostics) WriteDiagnostic(writer, d);
+        writer.WriteEndArray();
+        writer.WriteStartArray("warnings");
+        foreach (var w in lint)
+        {
+            writer.WriteStartObject();
+            writer.WriteString("code", w.Code);
+            writer.WriteString("task", w.TaskId);
+            writer.WriteString("phrase", w.Phrase);
+            writer.WriteString("other_task", w.OtherTaskId);
+            writer.WriteString("other_phrase", w.OtherPhrase);
+            if (w.Similarity is { } s) writer.WriteNumber("similarity", Math.Round(s, 4)); else writer.WriteNull("similarity");
+            writer.WriteString("message", w.Message);
+            writer.WriteEndObject();
+        }
+        writer.WriteEndArray();
+        writer.WriteEndObject();
+        writer.Flush();
+        CliRunner.EndJson(context);
+    }
+
+    private static void WriteDiagnostic(Utf8JsonWriter writer, RegistryDiagnostic d)
+    {
+        writer.WriteStartObject();
+        writer.WriteString("severity", d.Severity == DiagnosticSeverity.Error ? "error" : "warning");
+        writer.WriteString("code", d.Code);
+        writer.WriteString("message", d.Message);
+        writer.WriteString("file", d.Source);
+        writer.WriteNumber("line", d.Line);
+        writer.WriteNumber("column", d.Column);
+        writer.WriteEndObject();
+    }
+}

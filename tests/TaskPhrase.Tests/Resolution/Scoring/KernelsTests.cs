@@ -1,0 +1,51 @@
+using CsCheck;
+using TaskPhrase.Resolution.Scoring;
+
+namespace TaskPhrase.Tests.Resolution.Scoring;
+
+public class KernelsTests
+{
+    [Fact]
+    public void Dot_RandomVectors_MatchesDoubleSum()
+    {
+        // Reference: the plain double-precision sum (common practice); float rounding allows a small relative error.
+        Gen.Int[0, 100].SelectMany(n => Gen.Float[-1, 1].Array[n].SelectMany(x => Gen.Float[-1, 1].Array[n].Select(y => (x, y)))).Sample(t =>
+        {
+            var (x, y) = t;
+            double expected = 0, scale = 0;
+            for (int i = 0; i < x.Length; i++) { expected += (double)x[i] * y[i]; scale += Math.Abs((double)x[i] * y[i]); }
+            Assert.True(Math.Abs(Kernels.Dot(x, y) - expected) <= 1e-6 * (1 + scale), $"n = {x.Length}");
+        }, iter: 300);
+    }
+
+    [Fact]
+    public void Dot4_AnyRowCount_BitIdenticalToDot()
+    {
+        Gen.Int[1, 70].SelectMany(n => Gen.Int[1, 4].SelectMany(count => Gen.Float[-3, 3].Array[n * (count + 1)].Select(v => (n, count, v)))).Sample(t =>
+        {
+            var (n, count, v) = t;
+            var x = v.AsSpan(0, n).ToArray();
+            var rows = v.AsSpan(n).ToArray();
+            var result = new float[4];
+            Kernels.Dot4(x, rows, 0, count, result);
+            for (int r = 0; r < count; r++)
+                Assert.Equal(BitConverter.SingleToInt32Bits(Kernels.Dot(x, rows.AsSpan(r * n, n))), BitConverter.SingleToInt32Bits(result[r]));
+        }, iter: 300);
+    }
+
+    [Fact]
+    public void AddScaled_Floats_EqualsElementwiseMultiplyThenAdd()
+    {
+        Gen.Float[-2, 2].Array[0, 50].Select(x => x).Sample(x =>
+        {
+            var y = x.Select((v, i) => v * 0.5f + i).ToArray();
+            var expected = y.Select((v, i) => v + 1.7f * x[i]).ToArray();
+            Kernels.AddScaled(x, 1.7f, y);
+            Assert.Equal(expected, y);
+        }, iter: 100);
+    }
+
+    [Fact]
+    public void Dot_DifferentLengths_Throws()
+        => Assert.Throws<ArgumentException>(() => Kernels.Dot(new float[3], new float[4]));
+}

@@ -47,18 +47,8 @@ internal abstract class LoadedRegistry
 
         public override Task InstallAsync(TaskResolver resolver, CancellationToken cancellationToken)
         {
-            // Everything is read and checked before the swap; a malformed section leaves the registry in force.
-            int expected = index.Registry.Tasks.Sum(t => t.MustReject.Count) * index.Dimensions;
-            float[] rejects = index.Sections.TryGetValue(TaskIndexBuilder.MustRejectSection, out var bytes)
-                ? MemoryMarshal.Cast<byte, float>(bytes.Span).ToArray()
-                : [];
-            if (rejects.Length != expected)
-                throw new InvalidDataException($"{index.SourcePath}: the '{TaskIndexBuilder.MustRejectSection}' section holds {rejects.Length} values, expected {expected} for the registry's look-alikes; rebuild the index with 'taskphrase build'.");
-            var film = index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var table)
-                ? FilmTable.FromBytes(table.Span, null, $"{index.SourcePath} [film]")
-                : null;
-            resolver.Reload(index.Registry, index.PhraseEmbeddings.Span, rejects);
-            if (film is not null) resolver.UseConditioning(film);
+            // Everything is read and checked before the one atomic swap; a malformed section leaves the registry in force.
+            resolver.Reload(index);
             return Task.CompletedTask;
         }
     }

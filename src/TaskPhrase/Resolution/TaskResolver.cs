@@ -164,6 +164,25 @@ public sealed partial class TaskResolver
     public void Reload(TaskRegistry registry, CancellationToken cancellationToken = default)
         => ReloadAsync(registry, cancellationToken).GetAwaiter().GetResult();
 
+    /// <summary>
+    /// Replaces the registry atomically with a compiled index: its embeddings, look-alikes, learned head and FiLM table
+    /// are all read and checked first and swapped in one step; calls in flight finish on the old registry.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The index was built with another model.</exception>
+    /// <exception cref="InvalidDataException">A section of the index is malformed (the old registry stays in force).</exception>
+    public void Reload(TaskIndex index)
+    {
+        ArgumentNullException.ThrowIfNull(index);
+        if (index.Model.Sha256 != _model.Sha256 || index.Model.Dimensions != _model.Dimensions)
+            throw new InvalidOperationException($"The index was built with model '{index.Model.Id}' (SHA-256 {index.Model.Sha256}) but this resolver runs '{_model.Id}' (SHA-256 {_model.Sha256}). Rebuild the index with this model.");
+        var rejects = ReadMustReject(index);
+        var head = index.Sections.TryGetValue(TaskIndexBuilder.HeadSection, out var headBytes) ? TaskPhrase.Resolution.Scoring.TaskHead.FromBytes(headBytes.Span) : null;
+        var film = index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var filmBytes) ? FilmTable.FromBytes(filmBytes.Span, null, $"{index.SourcePath} [film]") : null;
+        var scoring = ChooseScoring(index.Registry, _options);
+        var state = ResolverState.Build(index.Registry, _model, index.PhraseEmbeddings.Span, rejects, scoring, _options.Learned, scoring == ScoringStrategy.Head ? head : null);
+        Volatile.Write(ref _state, film is not null ? state with { Film = film } : WithFilm(state, _film));
+    }
+
     /// <summary>Replaces the registry atomically with precomputed embeddings (see <see cref="FromEmbeddings"/>).</summary>
     public void Reload(TaskRegistry registry, ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings)
     {

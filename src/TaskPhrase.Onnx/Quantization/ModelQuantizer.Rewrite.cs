@@ -41,7 +41,9 @@ public static partial class ModelQuantizer
     /// <summary>
     /// Rewrites each group in place: <c>Mul(x, 1/s)</c> → <c>DynamicQuantizeLinear</c>, and per MatMul
     /// <c>MatMulInteger(x_q, W_q, x_zp)</c> → <c>Cast</c> → <c>Mul(·, x_scale · w_scale)</c>, with
-    /// W_q = round(diag(s)·W / w_scale) and w_scale = column max|diag(s)·W| / 127. Returns the number of MatMuls rewritten.
+    /// W_q = round(diag(s)·W / w_scale) and w_scale = column max|diag(s)·W| / 127. Groups wider than the narrowest
+    /// (the feed-forward down-projections) quantise their activation in two passes (value, then remainder).
+    /// Returns the number of MatMuls rewritten.
     /// </summary>
     internal static int Rewrite(ModelProto model, IReadOnlyList<MatMulGroup> groups, IReadOnlyDictionary<string, float[]> activationMaxima,
         double alpha, CancellationToken cancellationToken)
@@ -56,6 +58,7 @@ public static partial class ModelQuantizer
         var replacements = new Dictionary<NodeProto, List<NodeProto>>(ReferenceEqualityComparer.Instance);
         var removed = new HashSet<string>(StringComparer.Ordinal);
         int count = 0;
+        int narrowest = groups.Min(g => g.Channels);
         foreach (var group in groups)
         {
             cancellationToken.ThrowIfCancellationRequested();
@@ -72,6 +75,18 @@ public static partial class ModelQuantizer
                 Node("Mul", Fresh(x + "_smooth"), [x, inverse], [smoothed]),
                 Node("DynamicQuantizeLinear", Fresh(x + "_quantize"), [smoothed], [xq, xScale, xZero]),
             };
+            // Wide inputs (the feed-forward down-projection, fed by GELU) lose too much in one 8-bit pass: quantise the
+            // remainder x − dequantize(x_q) a second time and add the second integer product (still int8 × int8).
+            bool twoPass = group.Channels > narrowest;
+            string rq = "", rScale = "", rZero = "";
+            if (twoPass)
+            {
+                string dequantized = Fresh(x + "_dequantized"), remainder = Fresh(x + "_remainder");
+                rq = Fresh(x + "_remainder_quantized"); rScale = Fresh(x + "_remainder_scale"); rZero = Fresh(x + "_remainder_zero_point");
+                prefix.Add(Node("DequantizeLinear", Fresh(x + "_dequantize"), [xq, xScale, xZero], [dequantized]));
+                prefix.Add(Node("Sub", Fresh(x + "_subtract"), [smoothed, dequantized], [remainder]));
+                prefix.Add(Node("DynamicQuantizeLinear", Fresh(x + "_remainder_quantize"), [remainder], [rq, rScale, rZero]));
+            }
 
             for (int g = 0; g < group.MatMuls.Count; g++)
             {
@@ -90,7 +105,20 @@ public static partial class ModelQuantizer
                 nodes.Add(Node("MatMulInteger", Fresh(baseName + "_integer"), [xq, wq, xZero], [product]));
                 nodes.Add(cast);
                 nodes.Add(Node("Mul", Fresh(baseName + "_scales"), [xScale, wScale], [scale]));
-                nodes.Add(Node("Mul", Fresh(baseName + "_rescale"), [asFloat, scale], [matMul.Output[0]]));
+                string first = twoPass ? Fresh(baseName + "_first") : matMul.Output[0];
+                nodes.Add(Node("Mul", Fresh(baseName + "_rescale"), [asFloat, scale], [first]));
+                if (twoPass)
+                {
+                    string product2 = Fresh(baseName + "_remainder_int32"), asFloat2 = Fresh(baseName + "_remainder_float");
+                    string scale2 = Fresh(baseName + "_remainder_output_scale"), second = Fresh(baseName + "_second");
+                    var cast2 = Node("Cast", Fresh(baseName + "_remainder_cast"), [product2], [asFloat2]);
+                    cast2.Attribute.Add(new AttributeProto { Name = "to", Type = AttributeProto.Types.AttributeType.Int, I = FloatType });
+                    nodes.Add(Node("MatMulInteger", Fresh(baseName + "_remainder_integer"), [rq, wq, rZero], [product2]));
+                    nodes.Add(cast2);
+                    nodes.Add(Node("Mul", Fresh(baseName + "_remainder_scales"), [rScale, wScale], [scale2]));
+                    nodes.Add(Node("Mul", Fresh(baseName + "_remainder_rescale"), [asFloat2, scale2], [second]));
+                    nodes.Add(Node("Add", Fresh(baseName + "_sum"), [first, second], [matMul.Output[0]]));
+                }
                 replacements[matMul] = nodes;
                 removed.Add(w.Name);
                 count++;

@@ -23,6 +23,7 @@ internal static class CliApp
         root.Subcommands.Add(TuneCommand.Create(context));
         root.Subcommands.Add(ProbesCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
+        root.Subcommands.Add(QuantizeCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0 && !args.Contains("--help") && !args.Contains("-h"))

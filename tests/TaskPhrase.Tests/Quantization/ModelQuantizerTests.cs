@@ -36,7 +36,11 @@ public sealed class ModelQuantizerTests(QuantizedModelFixture fixture)
         using (var s = File.OpenRead(Path.Combine(fixture.ModelDirectory, "model.onnx")))
             Assert.Equal(Convert.ToHexStringLower(SHA256.HashData(s)), card.ModelSha256);
         Assert.Equal(File.ReadAllBytes(Path.Combine(BuiltInModels.Locate(), "vocab.txt")), File.ReadAllBytes(Path.Combine(fixture.ModelDirectory, "vocab.txt")));
-        Assert.Equal(fixture.Result.Card, card with { });
+        var written = card.Quantization.Quality!;
+        var measured = fixture.Result.Quantization.Quality!;
+        Assert.Equal((measured.MinCosine, measured.MeanCosine, measured.HeldOutPhrases), (written.MinCosine, written.MeanCosine, written.HeldOutPhrases));
+        Assert.Equal(measured.SimilarityMatrix!, written.SimilarityMatrix!);
+        Assert.Equal(QuantizationPhrases.Sha256(QuantizationPhrases.HeldOut), written.HeldOutSetSha256);
     }
 
     [Fact]
@@ -73,6 +77,19 @@ public sealed class ModelQuantizerTests(QuantizedModelFixture fixture)
         Assert.Equal("all-minilm-l6-v2-int8", int8.Model.Id);
         Assert.NotEqual(fixture.Fp32.Model.Sha256, int8.Model.Sha256);
         Assert.Equal(fixture.Fp32.Model.Dimensions, int8.Model.Dimensions);
+    }
+
+    [Fact]
+    public void PhraseSets_AreDisjointFromEachOtherAndFromTheExampleRegistry()
+    {
+        var calibration = QuantizationPhrases.Calibration.ToHashSet(StringComparer.OrdinalIgnoreCase);
+        Assert.True(calibration.Count >= 100, $"{calibration.Count} calibration phrases");
+        Assert.True(QuantizationPhrases.HeldOut.Count >= 100, $"{QuantizationPhrases.HeldOut.Count} held-out phrases");
+        Assert.Empty(QuantizationPhrases.HeldOut.Where(calibration.Contains));
+        var registry = TaskPhrase.Registry.RegistryLoader.Load(Path.Combine(AppContext.BaseDirectory, "examples", "harbor-street", "registry.yaml"));
+        var approved = registry.Tasks.SelectMany(t => t.Phrases).ToHashSet(StringComparer.OrdinalIgnoreCase);
+        Assert.NotEmpty(approved);
+        Assert.Empty(QuantizationPhrases.Calibration.Concat(QuantizationPhrases.HeldOut).Where(approved.Contains));
     }
 
     [Fact]

@@ -11,7 +11,6 @@ internal static class CliApp
 
     public static int Run(string[] args, CliContext context)
     {
-        var version = typeof(CliApp).Assembly.GetName().Version?.ToString(3) ?? "0.0.0";
         var root = new RootCommand("taskphrase: resolve spoken or typed commands to approved robot-arm tasks, and check, build and audit task registries.")
         {
             CommonOptions.Verbose(),
@@ -24,6 +23,7 @@ internal static class CliApp
         root.Subcommands.Add(ProbesCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
         root.Subcommands.Add(ServeCommand.Create(context));
+        root.Subcommands.Add(QuantizeCommand.Create(context));
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         var parse = root.Parse(args);
         if (parse.Errors.Count > 0 && !args.Contains("--help") && !args.Contains("-h"))

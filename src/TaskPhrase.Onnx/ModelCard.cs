@@ -1,5 +1,6 @@
 using System.Text.Json;
 using System.Text.Json.Serialization;
+using TaskPhrase.Onnx.Quantization;
 
 namespace TaskPhrase.Onnx;
 
@@ -33,6 +34,18 @@ public sealed record ModelCard
     /// <summary>Licence of the model.</summary>
     [JsonPropertyName("licence")] public string? Licence { get; init; }
 
+    /// <summary>SHA-256 of vocab.txt, if recorded (informational).</summary>
+    [JsonPropertyName("vocab_sha256")] public string? VocabSha256 { get; init; }
+
+    /// <summary>
+    /// Present on int8 models made by <see cref="ModelQuantizer"/>: method, provenance and measured quality.
+    /// Such a card must carry passing quality figures and <see cref="ModelSha256"/>, or the embedder refuses the model.
+    /// </summary>
+    [JsonPropertyName("quantization")] public ModelQuantizationInfo? Quantization { get; init; }
+
+    /// <summary>True when the card describes a quantised (int8) model.</summary>
+    [JsonIgnore] public bool IsQuantized => Quantization is not null;
+
     /// <summary>Reads and validates a card.</summary>
     /// <exception cref="InvalidDataException">The card is missing, malformed or has out-of-range values; the message names the file.</exception>
     public static ModelCard Load(string path)
@@ -56,6 +69,8 @@ public sealed record ModelCard
             throw new InvalidDataException($"{path}: \"max_tokens\" must be between 3 and 8192, not {card.MaxTokens}.");
         if (card.Dimensions is < 1 or > 65536)
             throw new InvalidDataException($"{path}: \"dimensions\" must be between 1 and 65536, not {card.Dimensions}.");
+        if (card.Quantization is not null && QuantizationGates.Check(card) is { } failure)
+            throw new InvalidDataException($"{path}: the card marks an int8 model but {failure}. Quantise the fp32 model again with 'taskphrase quantize', or use the fp32 model.");
         return card;
     }
 }

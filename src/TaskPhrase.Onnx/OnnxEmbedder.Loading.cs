@@ -35,7 +35,7 @@ public sealed partial class OnnxEmbedder
     /// <param name="directoryOrId">A directory, or one of <see cref="BuiltInModels.Ids"/>.</param>
     /// <param name="options">Runtime settings; null for the defaults.</param>
     /// <exception cref="DirectoryNotFoundException">The directory (or built-in model) does not exist.</exception>
-    /// <exception cref="InvalidDataException">A file is missing, malformed, has the wrong SHA-256, or the model's inputs/outputs do not fit; the message names the file and node.</exception>
+    /// <exception cref="InvalidDataException">A file is missing, malformed, has the wrong SHA-256, or the model's inputs/outputs do not fit; or the card marks an int8 model whose quality figures are missing or fail <see cref="Quantization.QuantizationGates"/>. The message names the file and node.</exception>
     public static OnnxEmbedder Create(string directoryOrId, OnnxEmbedderOptions? options = null)
     {
         ArgumentException.ThrowIfNullOrEmpty(directoryOrId);
@@ -50,7 +50,14 @@ public sealed partial class OnnxEmbedder
         foreach (var required in new[] { modelPath, vocabPath })
             if (!File.Exists(required)) throw new InvalidDataException($"{required}: missing. A model directory needs model.onnx, vocab.txt and model.json.");
         var card = ModelCard.Load(Path.Combine(directory, "model.json"));
+        return CreateCore(directory, card, options);
+    }
 
+    /// <summary>Loads a model directory with an already validated card (the quantiser uses it before the card is written).</summary>
+    internal static OnnxEmbedder CreateCore(string directory, ModelCard card, OnnxEmbedderOptions options)
+    {
+        string modelPath = Path.Combine(directory, "model.onnx");
+        string vocabPath = Path.Combine(directory, "vocab.txt");
         // Hash the model beside session creation: both read the same 90 MB once, in parallel.
         var hashing = Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); });
         var tokenizer = new WordPieceTokenizer(vocabPath, card.Lowercase);
@@ -58,10 +65,13 @@ public sealed partial class OnnxEmbedder
         {
             GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
             ExecutionMode = ExecutionMode.ORT_SEQUENTIAL,
-            IntraOpNumThreads = options.IntraOpThreads,
+            IntraOpNumThreads = card.IsQuantized && options.QuantizedIntraOpThreads > 0 ? options.QuantizedIntraOpThreads : options.IntraOpThreads,
             InterOpNumThreads = 1,
         };
         sessionOptions.AddSessionConfigEntry("session.intra_op.allow_spinning", options.AllowSpinning ? "1" : "0");
+        // Without VNNI, x64 int8 kernels can saturate the u8×s8 pair products; this setting avoids that. With VNNI it
+        // only costs speed (measured about half), so it is set only where VNNI is missing.
+        if (card.IsQuantized && NeedsX64QuantPrecision) sessionOptions.AddSessionConfigEntry("session.x64quantprecision", "1");
         InferenceSession session;
         try
         {
@@ -86,6 +96,23 @@ public sealed partial class OnnxEmbedder
             session.Dispose();
             throw;
         }
+    }
+
+    /// <summary>True on x64 CPUs without AVX-VNNI or AVX-512 VNNI (the int8 dot-product instructions).</summary>
+    internal static bool NeedsX64QuantPrecision =>
+        System.Runtime.InteropServices.RuntimeInformation.ProcessArchitecture == System.Runtime.InteropServices.Architecture.X64
+        && !HasVnni();
+
+    /// <summary>
+    /// AVX-VNNI (.NET reports it), or AVX-512 VNNI: .NET 10 has no class for the latter, so read CPUID leaf 7 (ECX bit 11,
+    /// Intel SDM vol. 2, CPUID) and require that the OS enabled AVX-512 (<c>Avx512F.IsSupported</c>).
+    /// </summary>
+    internal static bool HasVnni()
+    {
+        if (System.Runtime.Intrinsics.X86.AvxVnni.IsSupported || System.Runtime.Intrinsics.X86.Avx10v1.IsSupported) return true;
+        if (!System.Runtime.Intrinsics.X86.X86Base.IsSupported || !System.Runtime.Intrinsics.X86.Avx512F.IsSupported) return false;
+        var (_, _, ecx, _) = System.Runtime.Intrinsics.X86.X86Base.CpuId(7, 0);
+        return (ecx & (1 << 11)) != 0;
     }
 
     private static (string OutputName, bool NeedsTokenTypes) CheckContract(InferenceSession session, string modelPath, ModelCard card)

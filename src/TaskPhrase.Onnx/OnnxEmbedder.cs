@@ -30,6 +30,9 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     /// <summary>Identity of the loaded model (id, SHA-256 of model.onnx, dimensions, token limit, pooling).</summary>
     public EmbeddingModelInfo Model { get; }
 
+    /// <summary>The tokenizer (the quantiser feeds its calibration copy of the model with it).</summary>
+    internal WordPieceTokenizer Tokenizer => _tokenizer;
+
     /// <summary>The model directory this embedder was loaded from.</summary>
     public string ModelDirectory { get; }
 

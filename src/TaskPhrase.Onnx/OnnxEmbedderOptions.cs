@@ -5,6 +5,7 @@ public sealed class OnnxEmbedderOptions
 {
     private int _intraOpThreads = 2;
     private int _batchSize = 32;
+    private int _quantizedIntraOpThreads = 1;
 
     /// <summary>
     /// ONNX Runtime intra-op threads (default 2, measured best for single commands on a 2-core machine).
@@ -15,6 +16,18 @@ public sealed class OnnxEmbedderOptions
     {
         get => _intraOpThreads;
         set { ArgumentOutOfRangeException.ThrowIfNegative(value); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, 256); _intraOpThreads = value; }
+    }
+
+    /// <summary>
+    /// Intra-op threads for int8 models (cards with a <c>quantization</c> section), used instead of
+    /// <see cref="IntraOpThreads"/> (default 1: an int8 single command is short enough that a second thread costs
+    /// more in hand-over than it saves; see docs/int8.md). 0 means use <see cref="IntraOpThreads"/>.
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException">Negative or above 256.</exception>
+    public int QuantizedIntraOpThreads
+    {
+        get => _quantizedIntraOpThreads;
+        set { ArgumentOutOfRangeException.ThrowIfNegative(value); ArgumentOutOfRangeException.ThrowIfGreaterThan(value, 256); _quantizedIntraOpThreads = value; }
     }
 
     /// <summary>

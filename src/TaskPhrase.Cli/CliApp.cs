@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.CommandLine.Parsing;
 using TaskPhrase.Cli.Commands;
 
 namespace TaskPhrase.Cli;
@@ -20,7 +21,33 @@ internal static class CliApp
         root.Subcommands.Add(ResolveCommand.Create(context));
         root.Subcommands.Add(AuditCommand.Create(context));
         root.Subcommands.Add(EmbedCommand.Create(context));
+        var parse = root.Parse(args);
+        if (UsageErrors(parse) is { Count: > 0 } errors)
+        {
+            // One line per mistake, the exit code of bad usage, and no help screen: 'VERB --help' shows that.
+            string verb = parse.CommandResult.Command is RootCommand ? "taskphrase" : $"taskphrase {parse.CommandResult.Command.Name}";
+            foreach (var message in errors) context.Err.WriteLine($"error: {message} (see '{verb} --help')");
+            return ExitCodes.BadInput;
+        }
         var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
-        return root.Parse(args).Invoke(config);
+        return parse.Invoke(config);
+    }
+
+    /// <summary>
+    /// The parser's errors, plus option-like words (<c>--jsn</c>, <c>-x</c>) that the parser would otherwise take as
+    /// utterances or texts; such a word is accepted as text only after <c>--</c>.
+    /// </summary>
+    private static List<string> UsageErrors(ParseResult parse)
+    {
+        var errors = parse.Errors.Select(e => e.Message.TrimEnd('.')).Distinct().ToList();
+        foreach (var token in parse.Tokens)
+        {
+            if (token.Type == TokenType.DoubleDash) break;
+            string v = token.Value;
+            bool optionLike = v.StartsWith("--", StringComparison.Ordinal) && v.Length > 2 || v.Length == 2 && v[0] == '-' && char.IsLetter(v[1]);
+            if (token.Type == TokenType.Argument && optionLike)
+                errors.Add($"unknown option '{v}' (to give a text that starts with '-', put it after '--')");
+        }
+        return errors;
     }
 }

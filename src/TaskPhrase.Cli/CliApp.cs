@@ -40,9 +40,13 @@ internal static class CliApp
     private static List<string> UsageErrors(ParseResult parse)
     {
         var errors = parse.Errors.Select(e => e.Message.TrimEnd('.')).Distinct().ToList();
+        // An unknown word also makes the parser say that a command is missing: report the word only.
+        if (parse.UnmatchedTokens.Count > 0)
+            errors = errors.Where(e => parse.UnmatchedTokens.Any(t => e.Contains($"'{t}'", StringComparison.Ordinal))).ToList();
         foreach (var token in parse.Tokens)
         {
             if (token.Type == TokenType.DoubleDash) break;
+            if (parse.UnmatchedTokens.Contains(token.Value)) continue;
             string v = token.Value;
             bool optionLike = v.StartsWith("--", StringComparison.Ordinal) && v.Length > 2 || v.Length == 2 && v[0] == '-' && char.IsLetter(v[1]);
             if (token.Type == TokenType.Argument && optionLike)

@@ -88,6 +88,41 @@ public sealed class HostileInputTests(CliModelFixture fixture) : IDisposable
     }
 
     [Fact]
+    public void Resolve_LineOverTheReaderLimit_IsCutReportedAndResolved()
+    {
+        // 3,000,000 characters on one line (then a normal line, CR LF endings): bounded memory, a warning, both resolved.
+        byte[] input = Join(Encoding.UTF8.GetBytes(new string('a', 3 * InputLines.MaxLineChars)), "\r\nwater the basil\r\n"u8.ToArray());
+
+        var run = CliHarness.Run(fixture.Embedder, ["resolve", "--registry", Registry, "--input", "-", "--json"], input);
+
+        Assert.Equal(0, run.ExitCode);
+        var objects = JsonLines(run.Out);
+        Assert.Equal(2, objects.Count);
+        Assert.Equal(InputLines.MaxLineChars, objects[0].GetProperty("utterance").GetString()!.Length);
+        Assert.True(objects[0].GetProperty("truncated").GetBoolean());
+        Assert.Equal("water-basil", objects[1].GetProperty("task").GetString());
+        Assert.StartsWith("stdin:1: warning: the line is longer than 1,000,000 characters", Assert.Single(run.ErrLines), StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData("a\nb\n", "a|b")]
+    [InlineData("a\r\nb", "a|b")]
+    [InlineData("a\rb\r\n\r\nc", "a|b|c")]
+    [InlineData("\n\n  \n", "")]
+    public void Read_LineEndings_SplitLikeReadLine(string text, string expected)
+    {
+        // The reference is TextReader.ReadLine, which the reader replaced: same lines, blank ones skipped.
+        var context = new CliContext { Out = new StringWriter(), Err = new StringWriter(), OpenStdin = () => new MemoryStream(Encoding.UTF8.GetBytes(text)) };
+        var reference = new List<string>();
+        using (var r = new StringReader(text)) while (r.ReadLine() is { } l) if (!string.IsNullOrWhiteSpace(l)) reference.Add(l);
+
+        var got = InputLines.Read("-", context).Select(l => l.Text).ToList();
+
+        Assert.Equal(reference, got);
+        Assert.Equal(expected, string.Join('|', got));
+    }
+
+    [Fact]
     public void Resolve_HumanOutput_NeverEchoesControlCharacters()
     {
         var run = CliHarness.Run(fixture.Embedder, ["resolve", "--registry", Registry, "--input", "-"], HostileInput());

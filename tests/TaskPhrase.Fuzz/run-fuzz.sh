@@ -12,7 +12,8 @@ set -euo pipefail
 if [ $# -ne 2 ]; then echo "usage: $0 TARGET SECONDS" >&2; exit 2; fi
 target=$1
 seconds=$2
-here=$(cd "$(dirname "$0")" && pwd)
+# FUZZ_HARNESS_DIR: the harness folder, when this script runs from a copy (a long run survives edits to the original).
+here=${FUZZ_HARNESS_DIR:-$(cd "$(dirname "$0")" && pwd)}
 root=$(cd "$here/../.." && pwd)
 work=${FUZZ_WORK:-$root/artifacts/fuzz}
 sharpfuzz_version=2.3.0

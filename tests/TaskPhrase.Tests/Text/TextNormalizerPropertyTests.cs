@@ -20,7 +20,8 @@ public class TextNormalizerPropertyTests
         {
             string once = TextNormalizer.Normalize(text);
             string twice = TextNormalizer.Normalize(once);
-            Assert.True(once == twice, $"not idempotent: \"{HostileText.Escape(text)}\" → \"{HostileText.Escape(once)}\" → \"{HostileText.Escape(twice)}\"");
+            if (once != twice)
+                Assert.Fail($"not idempotent: \"{HostileText.Escape(text)}\" → \"{HostileText.Escape(once)}\" → \"{HostileText.Escape(twice)}\"");
         }, iter: Iterations, threads: 1, print: HostileText.Escape);
 
     [Fact]
@@ -31,12 +32,15 @@ public class TextNormalizerPropertyTests
             for (int i = 0; i < n.Length;)
             {
                 // Rune.DecodeFromUtf16 refuses a lone surrogate: the output must be well-formed UTF-16 (Unicode §3.9, D91).
+                // (Messages are built only on failure: building them for every character would dominate the run.)
                 var status = Rune.DecodeFromUtf16(n.AsSpan(i), out var rune, out int used);
-                Assert.True(status == System.Buffers.OperationStatus.Done, $"broken UTF-16 at {i} in \"{HostileText.Escape(n)}\"");
+                if (status != System.Buffers.OperationStatus.Done)
+                    Assert.Fail($"broken UTF-16 at {i} in \"{HostileText.Escape(n)}\"");
                 var category = Rune.GetUnicodeCategory(rune);
-                Assert.False(category is UnicodeCategory.Control or UnicodeCategory.Format or UnicodeCategory.Surrogate,
-                    $"U+{rune.Value:X4} ({category}) left in \"{HostileText.Escape(n)}\" from \"{HostileText.Escape(text)}\"");
-                Assert.False(Rune.IsWhiteSpace(rune) && rune.Value != ' ', $"white space U+{rune.Value:X4} other than a space left in \"{HostileText.Escape(n)}\"");
+                if (category is UnicodeCategory.Control or UnicodeCategory.Format or UnicodeCategory.Surrogate)
+                    Assert.Fail($"U+{rune.Value:X4} ({category}) left in \"{HostileText.Escape(n)}\" from \"{HostileText.Escape(text)}\"");
+                if (Rune.IsWhiteSpace(rune) && rune.Value != ' ')
+                    Assert.Fail($"white space U+{rune.Value:X4} other than a space left in \"{HostileText.Escape(n)}\"");
                 i += used;
             }
         }, iter: Iterations, threads: 1, print: HostileText.Escape);
@@ -47,9 +51,9 @@ public class TextNormalizerPropertyTests
         {
             string n = TextNormalizer.Normalize(text);
             // Ordinal: a culture-aware search would skip combining marks and call " \u05A6 " a double space.
-            Assert.False(n.Contains("  ", StringComparison.Ordinal), $"double space in \"{HostileText.Escape(n)}\"");
-            Assert.False(n.StartsWith(' ') || n.EndsWith(' '), $"untrimmed: \"{HostileText.Escape(n)}\"");
-            Assert.True(n.IsNormalized(NormalizationForm.FormKC), $"not NFKC: \"{HostileText.Escape(n)}\"");
+            if (n.Contains("  ", StringComparison.Ordinal)) Assert.Fail($"double space in \"{HostileText.Escape(n)}\"");
+            if (n.StartsWith(' ') || n.EndsWith(' ')) Assert.Fail($"untrimmed: \"{HostileText.Escape(n)}\"");
+            if (!n.IsNormalized(NormalizationForm.FormKC)) Assert.Fail($"not NFKC: \"{HostileText.Escape(n)}\"");
         }, iter: Iterations, threads: 1, print: HostileText.Escape);
 
     [Fact]

@@ -8,7 +8,8 @@ namespace TaskPhrase.Fuzz;
 /// <list type="bullet">
 /// <item><description><c>fuzz TARGET</c>: run under afl-fuzz (SharpFuzz out-of-process fork server); see run-fuzz.sh.</description></item>
 /// <item><description><c>replay TARGET|all [DIR…]</c>: run every file of the target's seed folders, its committed corpus
-/// (<c>tests/TaskPhrase.Fuzz/corpus/TARGET</c>) and any DIR through the target in-process; exit 1 if any input crashes.</description></item>
+/// (<c>tests/TaskPhrase.Fuzz/corpus/TARGET</c>), its crash regressions (<c>tests/TaskPhrase.Fuzz/regressions/TARGET</c>: inputs
+/// that once crashed it) and any DIR through the target in-process; exit 1 if any input crashes.</description></item>
 /// <item><description><c>collect TARGET DIR</c>: copy the target's seeds and committed corpus into DIR (afl-fuzz's <c>-i</c>).</description></item>
 /// <item><description><c>seed DIR</c>: write the generated index seeds; <c>list</c>: print the targets.</description></item>
 /// </list>
@@ -49,6 +50,7 @@ internal static class Program
     private static List<string> Inputs(FuzzTarget target, string root, IEnumerable<string> extra)
         => target.SeedDirectories.Select(d => Path.Combine(root, d))
             .Append(Path.Combine(root, "tests/TaskPhrase.Fuzz/corpus", target.Name))
+            .Append(Path.Combine(root, "tests/TaskPhrase.Fuzz/regressions", target.Name))
             .Concat(extra)
             .Where(Directory.Exists)
             .SelectMany(d => Directory.EnumerateFiles(d, "*", SearchOption.AllDirectories))

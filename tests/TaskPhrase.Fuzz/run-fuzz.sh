@@ -67,7 +67,7 @@ if [ "${FUZZ_SAVE_CORPUS:-0}" = 1 ]; then
   cp "$corpus"/* "$merged"/ 2>/dev/null || true
   (cd "$root" && afl-cmin -i "$merged" -o "$work/min/$target" -m none -t 5000 -- "$(readlink -f "$(command -v dotnet)")" "$bin/TaskPhrase.Fuzz.dll" fuzz "$target") \
     > "$work/cmin-$target.log" 2>&1
-  rm -f "$corpus"/*
+  find "$corpus" -maxdepth 1 -type f -delete
   i=0
   for f in "$work/min/$target"/*; do cp "$f" "$corpus/$(printf '%04d' $i)"; i=$((i + 1)); done
   echo "corpus $target: $i minimised inputs in $corpus"

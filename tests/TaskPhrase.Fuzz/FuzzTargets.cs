@@ -145,7 +145,9 @@ internal static class FuzzTargets
         }
         var phrase = index.Phrases.Count > 0 ? index.Phrases[0] : "water the basil";
         var exact = resolver.Resolve(phrase);
-        if (exact.Outcome != ResolutionOutcome.Accepted || !exact.ExactMatch)
+        // A phrase longer than the input cap is cut before matching, so only shorter ones must match exactly.
+        bool fits = Text.TextNormalizer.Normalize(phrase).Length <= new ResolverOptions().MaxInputChars;
+        if (fits && (exact.Outcome != ResolutionOutcome.Accepted || !exact.ExactMatch))
             throw new InvariantViolation($"the index's own phrase \"{phrase}\" was not accepted as an exact match ({exact.Outcome}, {exact.Reason})");
         _ = resolver.Resolve("could you water the plant please");
     }

@@ -41,7 +41,7 @@ mkdir -p "$out"
 
 # Dictionaries (-x, up to 4): hostile UTF-8 for the text targets, format keywords for each.
 dicts=()
-case $target in registry|probes) dicts+=(-x "$here/dict/unicode.dict");; esac
+case $target in registry|probes) [ -f "$here/dict/unicode.dict" ] && dicts+=(-x "$here/dict/unicode.dict");; esac
 base=${target%-raw}
 [ -f "$here/dict/$base.dict" ] && dicts+=(-x "$here/dict/$base.dict")
 

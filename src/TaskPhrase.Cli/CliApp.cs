@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.CommandLine.Parsing;
 using TaskPhrase.Cli.Commands;
 
 namespace TaskPhrase.Cli;
@@ -24,15 +25,37 @@ internal static class CliApp
         root.Subcommands.Add(EmbedCommand.Create(context));
         root.Subcommands.Add(ServeCommand.Create(context));
         root.Subcommands.Add(QuantizeCommand.Create(context));
-        var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         var parse = root.Parse(args);
-        if (parse.Errors.Count > 0 && !args.Contains("--help") && !args.Contains("-h"))
+        if (UsageErrors(parse) is { Count: > 0 } errors)
         {
-            // Bad usage is exit 2, with the parser's message on one line each and a pointer to --help.
-            foreach (var error in parse.Errors) context.Err.WriteLine($"error: {error.Message}");
-            context.Err.WriteLine("Run 'taskphrase --help' or 'taskphrase VERB --help' for usage.");
+            // One line per mistake, the exit code of bad usage, and no help screen: 'VERB --help' shows that.
+            string verb = parse.CommandResult.Command is RootCommand ? "taskphrase" : $"taskphrase {parse.CommandResult.Command.Name}";
+            foreach (var message in errors) context.Err.WriteLine($"error: {message} (see '{verb} --help')");
             return ExitCodes.BadInput;
         }
+        var config = new InvocationConfiguration { Output = context.Out, Error = context.Err };
         return parse.Invoke(config);
+    }
+
+    /// <summary>
+    /// The parser's errors, plus option-like words (<c>--jsn</c>, <c>-x</c>) that the parser would otherwise take as
+    /// utterances or texts; such a word is accepted as text only after <c>--</c>.
+    /// </summary>
+    private static List<string> UsageErrors(ParseResult parse)
+    {
+        var errors = parse.Errors.Select(e => e.Message.TrimEnd('.')).Distinct().ToList();
+        // An unknown word also makes the parser say that a command is missing: report the word only.
+        if (parse.UnmatchedTokens.Count > 0)
+            errors = errors.Where(e => parse.UnmatchedTokens.Any(t => e.Contains($"'{t}'", StringComparison.Ordinal))).ToList();
+        foreach (var token in parse.Tokens)
+        {
+            if (token.Type == TokenType.DoubleDash) break;
+            if (parse.UnmatchedTokens.Contains(token.Value)) continue;
+            string v = token.Value;
+            bool optionLike = v.StartsWith("--", StringComparison.Ordinal) && v.Length > 2 || v.Length == 2 && v[0] == '-' && char.IsLetter(v[1]);
+            if (token.Type == TokenType.Argument && optionLike)
+                errors.Add($"unknown option '{v}' (to give a text that starts with '-', put it after '--')");
+        }
+        return errors;
     }
 }

@@ -16,7 +16,8 @@ internal static class ProbeRunner
         }
         catch (ProbeSuiteException e)
         {
-            throw new CliException(e.Message, ExitCodes.BadInput, e);
+            // One "error:" line per problem (the exception's own message has a heading line and unprefixed rows).
+            throw new CliException(string.Join(Environment.NewLine + "error: ", e.Errors.Select(p => p.ToString())), ExitCodes.BadInput, e);
         }
         catch (FileNotFoundException)
         {

@@ -85,7 +85,9 @@ internal static class AuditCommand
         var option = new Option<double?>(name) { Description = description };
         option.Validators.Add(result =>
         {
-            if (result.GetValueOrDefault<double?>() is { } v && (v < 0 || v > 1 || double.IsNaN(v)))
+            // Read the token, not the value: an unparsable token has its own parse error, and asking for its value throws.
+            if (result.Tokens is [{ } token] && double.TryParse(token.Value, NumberStyles.Float, CultureInfo.InvariantCulture, out double v)
+                && (v < 0 || v > 1 || double.IsNaN(v)))
                 result.AddError($"{name} must be a rate between 0 and 1 (e.g. 0.05 for 5 %), not {v.ToString(CultureInfo.InvariantCulture)}.");
         });
         return option;

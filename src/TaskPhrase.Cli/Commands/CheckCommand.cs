@@ -20,6 +20,7 @@ internal static class CheckCommand
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
             string path = parse.GetValue(registry)!;
+            if (Directory.Exists(path)) throw new CliException($"{path}: this is a directory, not a registry file; give the path of the .yaml file.");
             if (!File.Exists(path)) throw new CliException($"{path}: registry file not found.");
             var result = RegistryLoader.TryLoad(path);
             var lint = new List<LintWarning>();

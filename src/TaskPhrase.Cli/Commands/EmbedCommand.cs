@@ -49,7 +49,7 @@ internal static class EmbedCommand
             else
             {
                 for (int i = 0; i < all.Count; i++)
-                    context.Out.WriteLine($"{all[i]}\t{string.Join(' ', vectors[i].Select(x => x.ToString("0.######", CultureInfo.InvariantCulture)))}");
+                    context.Out.WriteLine($"{ResolveCommand.Printable(all[i])}\t{string.Join(' ', vectors[i].Select(x => x.ToString("0.######", CultureInfo.InvariantCulture)))}");
             }
             return ExitCodes.Success;
         }));

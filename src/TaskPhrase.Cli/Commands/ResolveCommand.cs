@@ -75,8 +75,32 @@ internal static class ResolveCommand
         string what = r.Outcome == ResolutionOutcome.Accepted
             ? $"{r.Task!.Id} ({r.Task.Controller.Manifold}, {r.Task.Controller.LatentDims} axes){(r.Confirm ? " [bold]CONFIRM FIRST[/]" : "")}"
             : $"{ResolutionJson.Name(r.Reason)}{(r.Task is null ? "" : $"; nearest {r.Task.Id}")}";
-        console.MarkupLine($"[{color}]{ResolutionJson.Name(r.Outcome)}[/] {Markup.Escape(r.Utterance)} → {what}  [grey]score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}[/]");
+        console.MarkupLine($"[{color}]{ResolutionJson.Name(r.Outcome)}[/] {Markup.Escape(Printable(r.Utterance))} → {what}  [grey]score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}[/]");
         if (r.Detail is { } detail && r.Outcome != ResolutionOutcome.Accepted)
             console.MarkupLine($"  [grey]{Markup.Escape(detail)}[/]");
+    }
+
+    /// <summary>
+    /// The utterance as shown on a terminal: control and format characters (escape sequences, bidi overrides) and
+    /// broken surrogates are written as <c>\uXXXX</c>, so that typed or piped input cannot drive the terminal.
+    /// </summary>
+    internal static string Printable(string text)
+    {
+        var sb = new System.Text.StringBuilder(text.Length);
+        for (int i = 0; i < text.Length; i++)
+        {
+            char c = text[i];
+            if (char.IsHighSurrogate(c) && i + 1 < text.Length && char.IsLowSurrogate(text[i + 1]))
+            {
+                sb.Append(c).Append(text[++i]);
+                continue;
+            }
+            var category = char.GetUnicodeCategory(c);
+            if (char.IsSurrogate(c) || category is System.Globalization.UnicodeCategory.Control or System.Globalization.UnicodeCategory.Format)
+                sb.Append($"\\u{(int)c:X4}");
+            else
+                sb.Append(c);
+        }
+        return sb.ToString();
     }
 }

@@ -106,7 +106,13 @@ public sealed partial class TaskResolver
         var head = index.Sections.TryGetValue(TaskIndexBuilder.HeadSection, out var headBytes) ? TaskPhrase.Resolution.Scoring.TaskHead.FromBytes(headBytes.Span) : null;
         var resolver = FromEmbeddingsWithHead(index.Registry, generator, index.Model, index.PhraseEmbeddings.Span, rejects, options, head);
         if (index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var film))
-            resolver.UseConditioning(FilmTable.FromBytes(film.Span, null, $"{index.SourcePath} [film]"));
+        {
+            var table = FilmTable.FromBytes(film.Span, null, $"{index.SourcePath} [film]");
+            // A table that does not fit the registry is a malformed section (as documented), not a caller error.
+            if (table.RowCount != index.PhraseCount || table.EmbeddingDimensions != index.Dimensions)
+                throw new InvalidDataException($"{index.SourcePath}: the '{TaskIndexBuilder.FilmSection}' section holds {table.RowCount} rows of {table.EmbeddingDimensions}-dimensional input, but the index has {index.PhraseCount} phrases of {index.Dimensions} dimensions; rebuild it with 'taskphrase build'.");
+            resolver.UseConditioning(table);
+        }
         return resolver;
     }
 

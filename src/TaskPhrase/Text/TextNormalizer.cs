@@ -11,7 +11,8 @@ namespace TaskPhrase.Text;
 public static class TextNormalizer
 {
     /// <summary>Returns the normalised form of <paramref name="text"/>.</summary>
-    /// <param name="text">Any text; lone surrogates are replaced by U+FFFD and then dropped.</param>
+    /// <param name="text">Any text; lone surrogates and the noncharacter U+FFFE (which the platform's NFKC refuses) are
+    /// replaced by U+FFFD and then dropped, so no input makes this throw.</param>
     /// <exception cref="ArgumentNullException"><paramref name="text"/> is null.</exception>
     public static string Normalize(string text)
     {
@@ -31,7 +32,7 @@ public static class TextNormalizer
 
     private static string NormalizeOnce(string text)
     {
-        string safe = ReplaceLoneSurrogates(text);
+        string safe = ReplaceUnnormalizable(text);
         string nfkc = safe.IsNormalized(NormalizationForm.FormKC) ? safe : safe.Normalize(NormalizationForm.FormKC);
         var sb = new StringBuilder(nfkc.Length);
         bool pendingSpace = false;
@@ -57,12 +58,14 @@ public static class TextNormalizer
 
     /// <summary>
     /// The key used for exact matching of an utterance against approved phrases: the normalised text,
-    /// lower-cased (invariant culture), with leading and trailing punctuation and symbols removed.
+    /// lower-cased (invariant culture) and normalised again (lower-casing can expose an NFKC composition, e.g.
+    /// fullwidth H + U+0331 becomes h + U+0331, which composes to U+1E96), with leading and trailing punctuation and
+    /// symbols removed. Idempotent: the key of a key is the key itself.
     /// </summary>
     /// <exception cref="ArgumentNullException"><paramref name="text"/> is null.</exception>
     public static string MatchKey(string text)
     {
-        string n = Normalize(text).ToLowerInvariant();
+        string n = Normalize(Normalize(text).ToLowerInvariant());
         int start = 0, end = n.Length;
         while (start < end && IsEdge(n[start])) start++;
         while (end > start && IsEdge(n[end - 1])) end--;
@@ -71,21 +74,25 @@ public static class TextNormalizer
         static bool IsEdge(char c) => char.IsPunctuation(c) || char.IsSymbol(c) || c == ' ';
     }
 
-    private static string ReplaceLoneSurrogates(string text)
+    /// <summary>
+    /// Replaces what <see cref="string.Normalize(NormalizationForm)"/> throws on — lone surrogates and U+FFFE (.NET's ICU
+    /// normalisation refuses both with an <see cref="ArgumentException"/>) — by U+FFFD.
+    /// </summary>
+    private static string ReplaceUnnormalizable(string text)
     {
         int i = 0;
         for (; i < text.Length; i++)
         {
             char c = text[i];
             if (char.IsHighSurrogate(c) && i + 1 < text.Length && char.IsLowSurrogate(text[i + 1])) { i++; continue; }
-            if (char.IsSurrogate(c)) break;
+            if (char.IsSurrogate(c) || c == '\uFFFE') break;
         }
         if (i >= text.Length) return text;
         var chars = text.ToCharArray();
-        for (int j = 0; j < chars.Length; j++)
+        for (int j = i; j < chars.Length; j++)
         {
             if (char.IsHighSurrogate(chars[j]) && j + 1 < chars.Length && char.IsLowSurrogate(chars[j + 1])) { j++; continue; }
-            if (char.IsSurrogate(chars[j])) chars[j] = '\uFFFD';
+            if (char.IsSurrogate(chars[j]) || chars[j] == '\uFFFE') chars[j] = '\uFFFD';
         }
         return new string(chars);
     }

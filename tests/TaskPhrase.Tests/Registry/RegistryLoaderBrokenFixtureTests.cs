@@ -44,6 +44,7 @@ public class RegistryLoaderBrokenFixtureTests
     [InlineData("binary-junk.yaml", RegistryDiagnosticCodes.BinaryContent, 2, 1, "NUL byte")]
     [InlineData("not-utf8.yaml", RegistryDiagnosticCodes.NotUtf8, 19, 32, "0xE9")]
     [InlineData("utf16.yaml", RegistryDiagnosticCodes.NotUtf8, 1, 1, "UTF-16")]
+    [InlineData("noncharacter-in-phrase.yaml", RegistryDiagnosticCodes.DuplicatePhrase, 11, 9, "appears twice in task water-basil (first at line 10, column 9")]
     public void TryLoad_BrokenFixture_ReportsItsOneErrorWithPlace(string file, string code, int line, int column, string messagePart)
     {
         string path = RegistryFixtures.Broken(file);

@@ -15,7 +15,7 @@ public sealed partial class OnnxEmbedder
         _options = options;
         _session = session;
         _tokenizer = tokenizer;
-        _outputName = outputName;
+        _outputNames = [outputName];
         _needsTokenTypes = needsTokenTypes;
         Model = new EmbeddingModelInfo(card.Id, sha256, card.Dimensions, card.MaxTokens, card.Pooling);
         _metadata = new EmbeddingGeneratorMetadata("TaskPhrase.Onnx", new Uri("file://" + Path.GetFullPath(directory)), card.Id, card.Dimensions);
@@ -58,9 +58,9 @@ public sealed partial class OnnxEmbedder
     {
         string modelPath = Path.Combine(directory, "model.onnx");
         string vocabPath = Path.Combine(directory, "vocab.txt");
-        // Hash the model beside session creation: both read the same 90 MB once, in parallel.
+        // Hash the model and read the vocabulary beside session creation (the longest step of a cold start).
         var hashing = Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); });
-        var tokenizer = new WordPieceTokenizer(vocabPath, card.Lowercase);
+        var tokenizing = Task.Run(() => new WordPieceTokenizer(vocabPath, card.Lowercase));
         var sessionOptions = new SessionOptions
         {
             GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
@@ -77,14 +77,18 @@ public sealed partial class OnnxEmbedder
         {
             session = new InferenceSession(modelPath, sessionOptions);
         }
-        catch (OnnxRuntimeException e)
+        catch (Exception e)
         {
-            throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e);
+            // A broken vocabulary is reported before a broken model, as when they were read one after the other.
+            tokenizing.GetAwaiter().GetResult();
+            if (e is OnnxRuntimeException) throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e);
+            throw;
         }
         finally { sessionOptions.Dispose(); }
 
         try
         {
+            var tokenizer = tokenizing.GetAwaiter().GetResult();
             var (outputName, needsTypes) = CheckContract(session, modelPath, card);
             string sha = hashing.GetAwaiter().GetResult();
             if (options.VerifyModelHash && card.ModelSha256 is { Length: > 0 } expected && !string.Equals(expected, sha, StringComparison.OrdinalIgnoreCase))

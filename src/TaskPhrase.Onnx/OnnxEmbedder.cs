@@ -21,7 +21,7 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     private readonly WordPieceTokenizer _tokenizer;
     private readonly ModelCard _card;
     private readonly OnnxEmbedderOptions _options;
-    private readonly string _outputName;
+    private readonly string[] _outputNames;
     private readonly bool _needsTokenTypes;
     private readonly EmbeddingGeneratorMetadata _metadata;
     private readonly ReaderWriterLockSlim _lifetime = new(LockRecursionPolicy.SupportsRecursion);
@@ -43,16 +43,19 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
         if (destination.Length != Model.Dimensions)
             throw new ArgumentException($"Destination has {destination.Length} elements; the model gives {Model.Dimensions}.", nameof(destination));
         EnterCall();
+        var scratch = RentScratch();
         try
         {
-            int limit = Model.MaxTokens;
-            long[] ids = new long[limit];
-            long[] mask = new long[limit];
-            var (count, truncated) = _tokenizer.Encode(text, ids, mask);
-            RunBatch(ids, mask, 1, count, destination);
+            var (count, truncated) = _tokenizer.Encode(text, scratch.Ids, scratch.Mask);
+            _session.RunWithBinding(scratch.RunOptions, scratch.Bind(count));
+            PoolAndNormalize(scratch.Hidden.AsSpan(0, count * Model.Dimensions), scratch.Mask.AsSpan(0, count), 1, count, destination);
             return truncated;
         }
-        finally { ExitCall(); }
+        finally
+        {
+            ReturnScratch(scratch);
+            ExitCall();
+        }
     }
 
     /// <inheritdoc />
@@ -158,10 +161,14 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
         {
             if (_disposed) return;
             _disposed = true;
+            DisposeScratch();
             _session.Dispose();
         }
         finally { _lifetime.ExitWriteLock(); }
     }
+
+    /// <summary>The session, for benchmarks that time a bare forward pass on the very same session.</summary>
+    internal InferenceSession Session => _session;
 
     private void EnterCall()
     {
@@ -190,18 +197,23 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
             var names = _needsTokenTypes ? InputNamesWithTypes : InputNames;
             OrtValue[] inputs = typesValue is null ? [idsValue, maskValue] : [idsValue, maskValue, typesValue];
             using var runOptions = new RunOptions();
-            using var outputs = _session.Run(runOptions, names, inputs, [_outputName]);
-            var hidden = outputs[0].GetTensorDataAsSpan<float>();
-            int dims = Model.Dimensions;
-            for (int b = 0; b < size; b++)
-            {
-                var target = destination.Slice(b * dims, dims);
-                Pool(hidden.Slice(b * width * dims, width * dims), mask.AsSpan(b * width, width), dims, target);
-                float norm = TensorPrimitives.Norm(target);
-                if (norm > 0) TensorPrimitives.Divide(target, norm, target);
-            }
+            using var outputs = _session.Run(runOptions, names, inputs, _outputNames);
+            PoolAndNormalize(outputs[0].GetTensorDataAsSpan<float>(), mask, size, width, destination);
         }
         finally { typesValue?.Dispose(); }
+    }
+
+    /// <summary>Pools each of the <paramref name="size"/> rows of the hidden state [size, width, dimensions] and L2-normalises it into <paramref name="destination"/>.</summary>
+    private void PoolAndNormalize(ReadOnlySpan<float> hidden, ReadOnlySpan<long> mask, int size, int width, Span<float> destination)
+    {
+        int dims = Model.Dimensions;
+        for (int b = 0; b < size; b++)
+        {
+            var target = destination.Slice(b * dims, dims);
+            Pool(hidden.Slice(b * width * dims, width * dims), mask.Slice(b * width, width), dims, target);
+            float norm = TensorPrimitives.Norm(target);
+            if (norm > 0) TensorPrimitives.Divide(target, norm, target);
+        }
     }
 
     private void Pool(ReadOnlySpan<float> hidden, ReadOnlySpan<long> mask, int dims, Span<float> target)

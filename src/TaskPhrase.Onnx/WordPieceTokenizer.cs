@@ -62,8 +62,8 @@ internal sealed class WordPieceTokenizer
     /// <summary>Word-piece statistics for the unintelligible guard.</summary>
     public SubwordStatistics Analyze(string text, int limit)
     {
-        var ids = new long[limit];
-        var mask = new long[limit];
+        Span<long> ids = limit <= 512 ? stackalloc long[limit] : new long[limit];
+        Span<long> mask = limit <= 512 ? stackalloc long[limit] : new long[limit];
         var (count, _) = Encode(text, ids, mask);
         int words = 0, alpha = 0, pieces = 0, unknown = 0, fragmented = 0, whole = 0;
         int wordStart = -1;

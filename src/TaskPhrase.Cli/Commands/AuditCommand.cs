@@ -46,7 +46,10 @@ internal static class AuditCommand
             // What a stricter wrong-task budget would cost on this suite (thresholds re-chosen per cap, false accepts kept
             // at the rate the registry's current thresholds give).
             var scored = suite.Cases.Select((c, i) => ScoredProbe.From(c, resolutions[i])).ToList();
-            var tradeOff = new ThresholdTuner().TuneForBudgets(scored, new TuningBudgets(double.IsNaN(report.FalseAcceptRate.Value) ? 0 : report.FalseAcceptRate.Value)).TradeOff;
+            // Needs both kinds of probe; a suite of one kind has no trade-off to show.
+            var tradeOff = report.Counts.InScope > 0 && report.Counts.OutOfScope > 0
+                ? new ThresholdTuner().TuneForBudgets(scored, new TuningBudgets(report.FalseAcceptRate.Value)).TradeOff
+                : [];
             if (parse.GetValue(json))
             {
                 var node = System.Text.Json.Nodes.JsonNode.Parse(AuditJson.ToJson(report, budget))!.AsObject();

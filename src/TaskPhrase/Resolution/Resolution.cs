@@ -55,8 +55,8 @@ public sealed record Resolution
     public IReadOnlyList<string> UncoveredWords { get; init; } = [];
 
     /// <summary>
-    /// Typing slips corrected toward the registry's vocabulary before embedding (e.g. <c>bazil → basil</c>);
-    /// <see cref="Normalized"/> then holds the corrected text that was embedded.
+    /// Typing slips corrected toward the registry's vocabulary before embedding (e.g. <c>bazil → basil</c>); the
+    /// corrected text is what was embedded and checked, while <see cref="Normalized"/> keeps the normalised input.
     /// </summary>
     public IReadOnlyList<string> Corrections { get; init; } = [];
 

@@ -8,7 +8,8 @@ namespace TaskPhrase.Resolution;
 public sealed partial class TaskResolver
 {
     /// <summary>An utterance after the steps that need no model: normalisation, empty, exact match, unintelligible.</summary>
-    private readonly record struct Prepared(string Original, string Text, bool Truncated, Resolution? Early, IReadOnlyList<string>? Corrections = null);
+    /// <remarks><c>Text</c> is what is embedded and checked (typo corrections applied); <c>Normalized</c> the normalised input.</remarks>
+    private readonly record struct Prepared(string Original, string Text, bool Truncated, Resolution? Early, IReadOnlyList<string>? Corrections = null, string? Normalized = null);
 
     private Prepared Prepare(ResolverState state, string utterance)
     {
@@ -55,7 +56,7 @@ public sealed partial class TaskResolver
         if (_options.CorrectTypos && _span is not null)
         {
             var (corrected, corrections) = VocabularyCorrector.Correct(text, state.Words, state.WordList, _span);
-            if (corrections.Count > 0) return new Prepared(utterance, corrected, truncated, null, corrections);
+            if (corrections.Count > 0) return new Prepared(utterance, corrected, truncated, null, corrections, text);
         }
         return new Prepared(utterance, text, truncated, null);
     }
@@ -104,7 +105,7 @@ public sealed partial class TaskResolver
         var result = new Resolution
         {
             Utterance = prepared.Original,
-            Normalized = prepared.Text,
+            Normalized = prepared.Normalized ?? prepared.Text,
             Outcome = ResolutionOutcome.Rejected,
             Task = task,
             Phrase = candidates[0].Phrase,

@@ -41,21 +41,17 @@ public class ClincHeadFloorTests(ModelFixture fixture)
 
     [Fact]
     [Trait("tier", "slow")]
-    public async Task Train_Clinc150FifteenHundredPhrases_TakesSeconds()
+    public async Task Train_Clinc150FifteenHundredPhrases_FitsTheApprovedPhrases()
     {
         var gen = ClincEmbeddings.Generator(fixture);
         var registry = ClincRegistry.Build(10);
         var texts = registry.Tasks.SelectMany(t => t.Phrases).ToList();
         var vectors = (await gen.GenerateAsync(texts)).SelectMany(e => e.Vector.ToArray()).ToArray();
         var labels = registry.Tasks.SelectMany((t, i) => t.Phrases.Select(_ => i)).ToArray();
-        var watch = Stopwatch.StartNew();
         var head = TaskHead.Train(vectors, labels, registry.Tasks.Count, [], 384, new LearnedScoringOptions { L2 = 0.001 });
-        watch.Stop();
         Assert.Equal(1500, labels.Length);
         Assert.True(head.TrainingLoss < 0.2, $"training loss {head.TrainingLoss} after {head.Iterations} iterations");
-        // Measured about 2 s in a Release build on the shared 2-core machine under load; the bound leaves room for a
-        // busier machine. Debug builds run the JIT without optimisation (vector code about 10× slower): not timed.
-        bool optimised = typeof(TaskHead).Assembly.GetCustomAttribute<DebuggableAttribute>()?.IsJITOptimizerDisabled != true;
-        if (optimised) Assert.True(watch.Elapsed < TimeSpan.FromSeconds(20), $"training took {watch.Elapsed.TotalSeconds:0.0} s");
+        // Training took about 2 s for these 1,500 phrases in a Release build (docs/clinc150-strategies.md); speed is
+        // reported from measurements, not asserted in a unit test.
     }
 }

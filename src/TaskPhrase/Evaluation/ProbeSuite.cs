@@ -3,6 +3,7 @@ using System.Globalization;
 using System.Text.RegularExpressions;
 using CsvHelper;
 using CsvHelper.Configuration;
+using TaskPhrase.Registry;
 using TaskPhrase.Text;
 
 namespace TaskPhrase.Evaluation;
@@ -131,7 +132,7 @@ public sealed partial class ProbeSuite
         foreach (var probe in Cases)
         {
             if (!probe.IsInScope || known.Contains(probe.Expect)) continue;
-            string? suggestion = DidYouMean.Closest(probe.Expect, taskIds);
+            string? suggestion = EditDistance.Suggest(probe.Expect, taskIds.Order(StringComparer.Ordinal));
             string hint = suggestion is null
                 ? "use one of the registry's task ids or reject"
                 : $"did you mean '{suggestion}'?";
@@ -340,7 +341,7 @@ public sealed partial class ProbeSuite
         {
             if (index >= 0) continue;
             string? near = header.FirstOrDefault(h => h.Length > 0 && !known.Contains(h, StringComparer.OrdinalIgnoreCase)
-                && DidYouMean.Closest(h, [required]) is not null);
+                && EditDistance.Suggest(h, [required]) is not null);
             string hint = near is not null
                 ? $"did you mean '{required}' for the column '{near}'?"
                 : $"add a '{required}' column";

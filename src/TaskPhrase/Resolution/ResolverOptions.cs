@@ -69,5 +69,29 @@ public sealed class ResolverOptions
     /// <summary>Whether to run the unintelligible guard (default true).</summary>
     public bool UnintelligibleGuard { get; set; } = true;
 
+    /// <summary>
+    /// Whether an utterance rejected as out of scope gets a second chance with its speech-recognition slips swapped for
+    /// registry words that sound alike ("pick up the male" → "pick up the mail"; default true). The rewrite is kept
+    /// only when it is accepted with a score of at least the task's accept threshold plus <see cref="SoundsLikeLift"/>
+    /// and every swapped-in word belongs to the accepted task; the swaps are reported in
+    /// <see cref="Resolution.Corrections"/>. Costs one more forward pass, and only for such rejections.
+    /// </summary>
+    public bool SoundsLikeRetry { get; set; } = true;
+
+    /// <summary>How far above the accept threshold a sound-alike rewrite must score to be kept (default 0.10, 0 to 1).</summary>
+    /// <exception cref="ArgumentOutOfRangeException">The value is outside [0, 1] or not a number.</exception>
+    public float SoundsLikeLift
+    {
+        get => _soundsLikeLift;
+        set
+        {
+            if (!(value >= 0 && value <= 1))
+                throw new ArgumentOutOfRangeException(nameof(value), value, "SoundsLikeLift must be between 0 and 1, e.g. 0.10.");
+            _soundsLikeLift = value;
+        }
+    }
+
+    private float _soundsLikeLift = 0.10f;
+
     internal ResolverOptions Clone() => (ResolverOptions)MemberwiseClone();
 }

@@ -208,7 +208,10 @@ public sealed partial class TaskResolver
         if (prepared.Early is { } early) return early with { Elapsed = Stopwatch.GetElapsedTime(start) };
         var vector = new float[state.Dimensions];
         bool truncated = EmbedOne(prepared.Text, vector);
-        return Decide(state, prepared, vector, truncated) with { Elapsed = Stopwatch.GetElapsedTime(start) };
+        var result = Decide(state, prepared, vector, truncated);
+        if (ProposeRetry(state, prepared, result) is { } retry)
+            result = KeepIfClear(state, prepared, result, retry, ResolveRetry(state, retry));
+        return result with { Elapsed = Stopwatch.GetElapsedTime(start) };
     }
 
     /// <summary>Resolves one utterance; the embedding call is awaited (useful with remote generators).</summary>
@@ -248,6 +251,7 @@ public sealed partial class TaskResolver
                 bool truncated = e.AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
                 results[i] = Decide(state, prepared[i], e.Vector.Span, truncated);
             }
+            await RetrySoundAlikesAsync(state, prepared, results, toEmbed, cancellationToken).ConfigureAwait(false);
         }
         var elapsed = Stopwatch.GetElapsedTime(start) / Math.Max(1, utterances.Count);
         for (int i = 0; i < results.Length; i++) results[i] = results[i] with { Elapsed = elapsed };

@@ -49,7 +49,7 @@ internal static class VocabularyCorrector
         return (Replace(text, replacements), corrections);
     }
 
-    private static string Replace(string text, Dictionary<string, string> replacements)
+    internal static string Replace(string text, Dictionary<string, string> replacements)
     {
         var sb = new StringBuilder(text.Length + 8);
         int i = 0;

@@ -1,0 +1,77 @@
+using TaskPhrase.Registry;
+using TaskPhrase.Resolution;
+
+namespace TaskPhrase.Tests.Resolution;
+
+/// <summary>The sound-alike second chance on the example registry with the real model.</summary>
+[Collection(ModelCollection.Name)]
+public class SoundsLikeRetryTests(ModelFixture fixture)
+{
+    private static readonly Lazy<TaskRegistry> Harbor = new(() => RegistryLoader.Load(TestPaths.Example("harbor-street", "registry.yaml")));
+
+    private TaskResolver Resolver(ResolverOptions? options = null) => TaskResolver.Create(Harbor.Value, fixture.Embedder, options);
+
+    [Theory]
+    [InlineData("turn the paige", "page-turn", "paige → page (sounds alike)")]
+    [InlineData("water the basel", "water-basil", "basel → basil (sounds alike)")]
+    [InlineData("water the basal", "water-basil", "basal → basil (sounds alike)")]
+    public void Resolve_SpeechSlipToSoundAlike_AcceptsWithReportedCorrection(string utterance, string task, string correction)
+    {
+        var r = Resolver().Resolve(utterance);
+        Assert.Equal(ResolutionOutcome.Accepted, r.Outcome);
+        Assert.Equal(task, r.Task!.Id);
+        Assert.Contains(correction, r.Corrections);
+        Assert.Equal(utterance, r.Utterance);
+        Assert.Equal(utterance, r.Normalized);
+        Assert.Contains("sound-alike", r.Detail);
+    }
+
+    [Fact]
+    public void Resolve_RetryOff_LeavesTheSlipRejected()
+    {
+        var r = Resolver(new ResolverOptions { SoundsLikeRetry = false }).Resolve("turn the paige");
+        Assert.Equal(ResolutionOutcome.Rejected, r.Outcome);
+        Assert.Equal(RejectionReason.OutOfScope, r.Reason);
+        Assert.Empty(r.Corrections);
+    }
+
+    [Fact]
+    public void Resolve_RewriteBelowTheLift_KeepsTheOriginalRejection()
+    {
+        // With a lift of 1 no rewrite can clear accept + lift (scores are at most 1), not even an exact match.
+        var r = Resolver(new ResolverOptions { SoundsLikeLift = 1f }).Resolve("turn the paige");
+        Assert.Equal(RejectionReason.OutOfScope, r.Reason);
+        Assert.Empty(r.Corrections);
+    }
+
+    [Theory]
+    [InlineData("don't water the basel")] // the rewrite is negated: refused, and the original rejection stands
+    [InlineData("pick up the meal")]      // meal is two edits from mail: no swap for a four-letter word
+    [InlineData("water the bagel")]       // bagel ~ basil (B240) but two edits: no swap
+    public void Resolve_NoClearSoundAlike_StaysRejected(string utterance)
+    {
+        var r = Resolver().Resolve(utterance);
+        Assert.NotEqual(ResolutionOutcome.Accepted, r.Outcome);
+    }
+
+    [Fact]
+    public void ResolveMany_WithRetries_EqualsOneAtATime()
+    {
+        string[] utterances = ["turn the paige", "water the basel", "pick up the meal", "don't water the basel", "could you water the basil", "water the basal"];
+        var resolver = Resolver();
+        var batch = resolver.ResolveMany(utterances);
+        for (int i = 0; i < utterances.Length; i++)
+        {
+            var one = resolver.Resolve(utterances[i]);
+            Assert.Equal(one.Outcome, batch[i].Outcome);
+            Assert.Equal(one.Task?.Id, batch[i].Task?.Id);
+            Assert.Equal(one.Reason, batch[i].Reason);
+            Assert.Equal(one.Corrections, batch[i].Corrections);
+            Assert.Equal(one.Score!.Value, batch[i].Score!.Value, 1e-4);
+        }
+    }
+
+    [Fact]
+    public void SoundsLikeLift_OutOfRange_Throws()
+        => Assert.Throws<ArgumentOutOfRangeException>(() => new ResolverOptions { SoundsLikeLift = 1.5f });
+}

@@ -71,7 +71,8 @@ public sealed class ResolverOptions
 
     /// <summary>
     /// Whether an utterance rejected as out of scope gets a second chance with its speech-recognition slips swapped for
-    /// registry words that sound alike ("pick up the male" → "pick up the mail"; default true). The rewrite is kept
+    /// registry words that sound alike ("water the basel" → "water the basil") and courtesy words at its edges dropped
+    /// ("ok …", "… thanks"; default true). The rewrite is kept
     /// only when it is accepted with a score of at least the task's accept threshold plus <see cref="SoundsLikeLift"/>
     /// and every swapped-in word belongs to the accepted task; the swaps are reported in
     /// <see cref="Resolution.Corrections"/>. Costs one more forward pass, and only for such rejections.

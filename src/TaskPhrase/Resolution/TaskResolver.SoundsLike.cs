@@ -1,24 +1,54 @@
+using System.Runtime.CompilerServices;
 using TaskPhrase.Text;
 
 namespace TaskPhrase.Resolution;
 
 public sealed partial class TaskResolver
 {
-    /// <summary>A sound-alike rewrite of a rejected utterance, prepared for resolving, with the swaps that made it.</summary>
-    private readonly record struct Retry(Prepared Prepared, IReadOnlyList<(string From, string To)> Swaps);
+    /// <summary>A rewrite of a rejected utterance, prepared for resolving, with the swaps and dropped courtesy words that made it.</summary>
+    private readonly record struct Retry(Prepared Prepared, IReadOnlyList<(string From, string To)> Swaps, IReadOnlyList<string> Dropped);
+
+    /// <summary>Per registry state: exact-match keys of the approved phrases without their edge courtesy words (−1: two tasks share one).</summary>
+    private static readonly ConditionalWeakTable<ResolverState, Dictionary<string, int>> TrimmedExact = new();
 
     /// <summary>
     /// The second chance for an out-of-scope rejection (<see cref="ResolverOptions.SoundsLikeRetry"/>): the rewrite with
-    /// sound-alike registry words swapped in, or null when the option is off, the result was not an out-of-scope
-    /// rejection or no word has a sound-alike.
+    /// sound-alike registry words swapped in and edge courtesy words dropped ("… thanks"), or null when the option is
+    /// off, the result was not an out-of-scope rejection or there is nothing to rewrite. A trimmed rewrite that equals
+    /// an approved phrase without its own courtesy words ("collect the post" for "collect the post please") is resolved
+    /// as an exact match of that phrase.
     /// </summary>
     private Retry? ProposeRetry(ResolverState state, Prepared first, Resolution result)
     {
         if (!_options.SoundsLikeRetry || result.Outcome != ResolutionOutcome.Rejected || result.Reason != RejectionReason.OutOfScope)
             return null;
-        var proposal = SoundsLikeCorrector.Propose(first.Text, state.Words, state.WordList, state.Hazards);
-        if (proposal is not { } p) return null;
-        return new Retry(Prepare(state, p.Text), p.Swaps);
+        var swapped = SoundsLikeCorrector.Propose(first.Text, state.Words, state.WordList, state.Hazards);
+        string text = swapped?.Text ?? first.Text;
+        var trimmed = CourtesyTrim.Trim(text);
+        if (swapped is null && trimmed is null) return null;
+        string rewrite = trimmed?.Text ?? text;
+        var prepared = Prepare(state, rewrite);
+        if (prepared.Early is null && trimmed is not null
+            && TrimmedExact.GetValue(state, BuildTrimmedExact).TryGetValue(TextNormalizer.MatchKey(rewrite), out int row) && row >= 0)
+        {
+            var task = state.Registry.Tasks[state.PhraseTask[row]];
+            prepared = Prepare(state, task.Phrases[state.PhraseOrdinal[row]]);
+        }
+        return new Retry(prepared, swapped?.Swaps ?? [], trimmed?.Dropped ?? []);
+    }
+
+    private static Dictionary<string, int> BuildTrimmedExact(ResolverState state)
+    {
+        var keys = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int row = 0; row < state.PhraseTask.Length; row++)
+        {
+            string phrase = state.Registry.Tasks[state.PhraseTask[row]].Phrases[state.PhraseOrdinal[row]];
+            if (CourtesyTrim.Trim(phrase) is not { } t) continue;
+            string key = TextNormalizer.MatchKey(t.Text);
+            if (keys.TryGetValue(key, out int other) && (other < 0 || state.PhraseTask[other] != state.PhraseTask[row])) keys[key] = -1;
+            else keys.TryAdd(key, row);
+        }
+        return keys;
     }
 
     /// <summary>Resolves a retry on the calling thread (one more forward pass unless the rewrite is an exact match).</summary>
@@ -47,14 +77,16 @@ public sealed partial class TaskResolver
         var corrections = new List<string>(first.Corrections ?? []);
         foreach (var (from, to) in retry.Swaps) corrections.Add($"{from} → {to} (sounds alike)");
         foreach (var c in second.Corrections) if (!corrections.Contains(c)) corrections.Add(c);
-        string swaps = string.Join(", ", retry.Swaps.Select(s => $"{s.From} → {s.To}"));
+        var how = new List<string>(2);
+        if (retry.Swaps.Count > 0) how.Add($"swapping sound-alike words ({string.Join(", ", retry.Swaps.Select(s => $"{s.From} → {s.To}"))})");
+        if (retry.Dropped.Count > 0) how.Add($"dropping courtesy words ({string.Join(", ", retry.Dropped.Select(d => $"'{d}'"))})");
         return second with
         {
             Utterance = first.Original,
             Normalized = first.Normalized ?? first.Text,
             Truncated = second.Truncated || first.Truncated,
             Corrections = corrections,
-            Detail = $"{second.Detail} after swapping sound-alike words ({swaps})",
+            Detail = $"{second.Detail} after {string.Join(" and ", how)}",
         };
     }
 

@@ -26,6 +26,22 @@ public class SoundsLikeRetryTests(ModelFixture fixture)
         Assert.Contains("sound-alike", r.Detail);
     }
 
+    [Theory]
+    [InlineData("pick up the mail for me thanks", "mail-pickup", "pick up the mail")]
+    [InlineData("collect the post please thanks", "mail-pickup", "collect the post please")] // the phrase's own "please" is dropped too
+    [InlineData("ok, hang up my keys, thanks", "keys-hook", "hang up my keys")]
+    public void Resolve_CourtesyWordsAroundAnApprovedPhrase_AcceptsAsExactMatch(string utterance, string task, string phrase)
+    {
+        var r = Resolver().Resolve(utterance);
+        Assert.Equal(ResolutionOutcome.Accepted, r.Outcome);
+        Assert.Equal(task, r.Task!.Id);
+        Assert.Equal(phrase, r.Phrase);
+        Assert.True(r.ExactMatch);
+        Assert.Equal(utterance, r.Utterance);
+        Assert.Contains("courtesy words", r.Detail);
+        Assert.Empty(r.Corrections);
+    }
+
     [Fact]
     public void Resolve_RetryOff_LeavesTheSlipRejected()
     {
@@ -57,7 +73,7 @@ public class SoundsLikeRetryTests(ModelFixture fixture)
     [Fact]
     public void ResolveMany_WithRetries_EqualsOneAtATime()
     {
-        string[] utterances = ["turn the paige", "water the basel", "pick up the meal", "don't water the basel", "could you water the basil", "water the basal"];
+        string[] utterances = ["turn the paige", "water the basel", "pick up the meal", "don't water the basel", "could you water the basil", "water the basal", "collect the post please thanks"];
         var resolver = Resolver();
         var batch = resolver.ResolveMany(utterances);
         for (int i = 0; i < utterances.Length; i++)

@@ -73,26 +73,26 @@ public sealed class ResolverOptions
     /// Whether an utterance rejected as out of scope gets a second chance with its speech-recognition slips swapped for
     /// registry words that sound alike ("water the basel" → "water the basil") and courtesy words at its edges dropped
     /// ("ok …", "… thanks"; default true). The rewrite is kept
-    /// only when it is accepted with a score of at least the task's accept threshold plus <see cref="SoundsLikeLift"/>
+    /// only when it is accepted with a score of at least the task's accept threshold plus <see cref="SecondChanceLift"/>
     /// and every swapped-in word belongs to the accepted task; the swaps are reported in
     /// <see cref="Resolution.Corrections"/>. Costs one more forward pass, and only for such rejections.
     /// </summary>
-    public bool SoundsLikeRetry { get; set; } = true;
+    public bool SecondChance { get; set; } = true;
 
     /// <summary>How far above the accept threshold a sound-alike rewrite must score to be kept (default 0.10, 0 to 1).</summary>
     /// <exception cref="ArgumentOutOfRangeException">The value is outside [0, 1] or not a number.</exception>
-    public float SoundsLikeLift
+    public float SecondChanceLift
     {
-        get => _soundsLikeLift;
+        get => _secondChanceLift;
         set
         {
             if (!(value >= 0 && value <= 1))
-                throw new ArgumentOutOfRangeException(nameof(value), value, "SoundsLikeLift must be between 0 and 1, e.g. 0.10.");
-            _soundsLikeLift = value;
+                throw new ArgumentOutOfRangeException(nameof(value), value, "SecondChanceLift must be between 0 and 1, e.g. 0.10.");
+            _secondChanceLift = value;
         }
     }
 
-    private float _soundsLikeLift = 0.10f;
+    private float _secondChanceLift = 0.10f;
 
     internal ResolverOptions Clone() => (ResolverOptions)MemberwiseClone();
 }

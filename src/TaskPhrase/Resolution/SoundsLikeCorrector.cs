@@ -10,7 +10,7 @@ namespace TaskPhrase.Resolution;
 /// alike — the same American Soundex code, spelt within one edit (two for words of seven letters or more), at most two letters
 /// longer or shorter. Stop words, negation cues and hazard words are never swapped, and neither is a word with two
 /// equally close candidates. The rewrite is only a proposal: the resolver re-resolves it and keeps it only when it
-/// is accepted clearly (see <see cref="ResolverOptions.SoundsLikeRetry"/>).
+/// is accepted clearly (see <see cref="ResolverOptions.SecondChance"/>).
 /// </summary>
 internal static class SoundsLikeCorrector
 {

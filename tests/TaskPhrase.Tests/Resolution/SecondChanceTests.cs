@@ -3,9 +3,9 @@ using TaskPhrase.Resolution;
 
 namespace TaskPhrase.Tests.Resolution;
 
-/// <summary>The sound-alike second chance on the example registry with the real model.</summary>
+/// <summary>The second chance for out-of-scope rejections (sound-alike swaps, courtesy words) on the example registry with the real model.</summary>
 [Collection(ModelCollection.Name)]
-public class SoundsLikeRetryTests(ModelFixture fixture)
+public class SecondChanceTests(ModelFixture fixture)
 {
     private static readonly Lazy<TaskRegistry> Harbor = new(() => RegistryLoader.Load(TestPaths.Example("harbor-street", "registry.yaml")));
 
@@ -45,7 +45,7 @@ public class SoundsLikeRetryTests(ModelFixture fixture)
     [Fact]
     public void Resolve_RetryOff_LeavesTheSlipRejected()
     {
-        var r = Resolver(new ResolverOptions { SoundsLikeRetry = false }).Resolve("turn the paige");
+        var r = Resolver(new ResolverOptions { SecondChance = false }).Resolve("turn the paige");
         Assert.Equal(ResolutionOutcome.Rejected, r.Outcome);
         Assert.Equal(RejectionReason.OutOfScope, r.Reason);
         Assert.Empty(r.Corrections);
@@ -55,7 +55,7 @@ public class SoundsLikeRetryTests(ModelFixture fixture)
     public void Resolve_RewriteBelowTheLift_KeepsTheOriginalRejection()
     {
         // With a lift of 1 no rewrite can clear accept + lift (scores are at most 1), not even an exact match.
-        var r = Resolver(new ResolverOptions { SoundsLikeLift = 1f }).Resolve("turn the paige");
+        var r = Resolver(new ResolverOptions { SecondChanceLift = 1f }).Resolve("turn the paige");
         Assert.Equal(RejectionReason.OutOfScope, r.Reason);
         Assert.Empty(r.Corrections);
     }
@@ -88,6 +88,6 @@ public class SoundsLikeRetryTests(ModelFixture fixture)
     }
 
     [Fact]
-    public void SoundsLikeLift_OutOfRange_Throws()
-        => Assert.Throws<ArgumentOutOfRangeException>(() => new ResolverOptions { SoundsLikeLift = 1.5f });
+    public void SecondChanceLift_OutOfRange_Throws()
+        => Assert.Throws<ArgumentOutOfRangeException>(() => new ResolverOptions { SecondChanceLift = 1.5f });
 }

@@ -12,7 +12,7 @@ public sealed partial class TaskResolver
     private static readonly ConditionalWeakTable<ResolverState, Dictionary<string, int>> TrimmedExact = new();
 
     /// <summary>
-    /// The second chance for an out-of-scope rejection (<see cref="ResolverOptions.SoundsLikeRetry"/>): the rewrite with
+    /// The second chance for an out-of-scope rejection (<see cref="ResolverOptions.SecondChance"/>): the rewrite with
     /// sound-alike registry words swapped in and edge courtesy words dropped ("… thanks"), or null when the option is
     /// off, the result was not an out-of-scope rejection or there is nothing to rewrite. A trimmed rewrite that equals
     /// an approved phrase without its own courtesy words ("collect the post" for "collect the post please") is resolved
@@ -20,7 +20,7 @@ public sealed partial class TaskResolver
     /// </summary>
     private Retry? ProposeRetry(ResolverState state, Prepared first, Resolution result)
     {
-        if (!_options.SoundsLikeRetry || result.Outcome != ResolutionOutcome.Rejected || result.Reason != RejectionReason.OutOfScope)
+        if (!_options.SecondChance || result.Outcome != ResolutionOutcome.Rejected || result.Reason != RejectionReason.OutOfScope)
             return null;
         var swapped = SoundsLikeCorrector.Propose(first.Text, state.Words, state.WordList, state.Hazards);
         string text = swapped?.Text ?? first.Text;
@@ -62,14 +62,14 @@ public sealed partial class TaskResolver
 
     /// <summary>
     /// Keeps the rewrite's resolution only when it is a clear acceptance: accepted, scoring at least the task's accept
-    /// threshold plus <see cref="ResolverOptions.SoundsLikeLift"/>, and every swapped-in word in the accepted task's own
+    /// threshold plus <see cref="ResolverOptions.SecondChanceLift"/>, and every swapped-in word in the accepted task's own
     /// vocabulary (a slip is only repaired toward the task it then selects). Otherwise the original rejection stands.
     /// </summary>
     private Resolution KeepIfClear(ResolverState state, Prepared first, Resolution original, Retry retry, Resolution second)
     {
         if (second.Outcome != ResolutionOutcome.Accepted || second.Task is not { } task) return original;
         float accept = _options.AcceptOverride ?? state.Registry.AcceptFor(task);
-        if (second.Score < accept + _options.SoundsLikeLift) return original;
+        if (second.Score < accept + _options.SecondChanceLift) return original;
         var vocabulary = state.Vocabulary[IndexOf(state, task.Id)];
         foreach (var (_, to) in retry.Swaps)
             if (!vocabulary.Contains(WordStemmer.Stem(to))) return original;

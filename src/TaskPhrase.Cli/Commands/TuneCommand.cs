@@ -138,6 +138,7 @@ internal static class TuneCommand
         if (p?.Shrinkage is { } s) writer.WriteNumber("shrinkage", s); else writer.WriteNull("shrinkage");
         if (p?.L2 is { } l2) writer.WriteNumber("l2", l2); else writer.WriteNull("l2");
         if (p?.Temperature is { } t) writer.WriteNumber("temperature", t); else writer.WriteNull("temperature");
+        if (p?.ProbabilityWeight is { } w) writer.WriteNumber("probability_weight", w); else writer.WriteNull("probability_weight");
         writer.WriteEndObject();
     }
 

@@ -24,13 +24,16 @@ public sealed record ScoringCandidate(string Strategy, ScoringParameters? Parame
     /// <summary>Softmax temperatures the default search tries for <c>head</c> (no retraining per temperature).</summary>
     public static IReadOnlyList<double> DefaultTemperatures { get; } = Array.AsReadOnly(new[] { 1.0, 2.0, 4.0 });
 
+    /// <summary>Probability weights α the default search tries for <c>head</c> (score p^α · c^(1 − α); no retraining).</summary>
+    public static IReadOnlyList<double> DefaultProbabilityWeights { get; } = Array.AsReadOnly(new[] { 0.25, 0.5, 0.75 });
+
     /// <summary>Readable form, e.g. <c>head (l2 0.01, temperature 2)</c>.</summary>
     public string Label => Parameters is null || Parameters.IsEmpty ? Strategy : $"{Strategy} ({Parameters})";
 
     /// <summary>
     /// The default search: centroid, best-phrase, top-k (k 3), blend, whitened at each of <see cref="DefaultShrinkages"/>,
-    /// and head at each of <see cref="DefaultL2"/> × <see cref="DefaultTemperatures"/> (Ledoit–Wolf shrinkage) — 17 settings,
-    /// three head trainings. Restricted to <paramref name="strategies"/> when given (order kept as above).
+    /// and head at each of <see cref="DefaultL2"/> × <see cref="DefaultTemperatures"/> × <see cref="DefaultProbabilityWeights"/>
+    /// (Ledoit–Wolf shrinkage; α 0.5 is left implicit) — 35 settings, three head trainings. Restricted to <paramref name="strategies"/> when given (order kept as above).
     /// </summary>
     /// <param name="strategies">Strategy names to keep, or null for all.</param>
     /// <exception cref="ArgumentException">A name is not a strategy, or the list is empty.</exception>
@@ -56,7 +59,11 @@ public sealed record ScoringCandidate(string Strategy, ScoringParameters? Parame
                 case "head":
                     foreach (var l2 in DefaultL2)
                         foreach (var t in DefaultTemperatures)
-                            grid.Add(new ScoringCandidate(name, new ScoringParameters { L2 = l2, Temperature = t }));
+                            foreach (var w in DefaultProbabilityWeights)
+                                grid.Add(new ScoringCandidate(name, new ScoringParameters
+                                {
+                                    L2 = l2, Temperature = t, ProbabilityWeight = w == TaskPhrase.Resolution.Scoring.TaskHead.DefaultProbabilityWeight ? null : w,
+                                }));
                     break;
                 default:
                     grid.Add(new ScoringCandidate(name));

@@ -80,7 +80,7 @@ public static class ScoringSearch
         var tuned = candidate.Apply(registry);
         if (candidate.ToStrategy() != ScoringStrategy.Head)
             return TaskResolver.CreateAsync(tuned, memo, null, ct).GetAwaiter().GetResult();
-        // The temperature only rescales the logits at resolve time: one training per (shrinkage, L2).
+        // The temperature and the probability weight act at resolve time only: one training per (shrinkage, L2).
         var learned = RegistryScoring.LearnedFor(tuned);
         var key = (candidate.Parameters?.Shrinkage, learned.L2);
         if (!heads.TryGetValue(key, out var trained))
@@ -89,7 +89,7 @@ public static class ScoringSearch
             heads[key] = trained;
             return trained;
         }
-        return trained.WithHead(trained.Head!.WithTemperature(learned.Temperature));
+        return trained.WithHead(trained.Head!.WithTemperature(learned.Temperature).WithProbabilityWeight(learned.ProbabilityWeight));
     }
 }
 

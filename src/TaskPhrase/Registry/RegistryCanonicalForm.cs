@@ -108,7 +108,7 @@ public static class RegistryCanonicalForm
     }
 
     /// <summary>
-    /// The plain name (so registries without parameters keep their hash), or <c>{"strategy":…,"shrinkage":…,"l2":…,"temperature":…}</c>
+    /// The plain name (so registries without parameters keep their hash), or <c>{"strategy":…,"shrinkage":…,"l2":…,"temperature":…,"probability_weight":…}</c>
     /// with only the set parameters.
     /// </summary>
     private static void AppendScoring(StringBuilder sb, string? name, ScoringParameters? parameters)
@@ -129,6 +129,7 @@ public static class RegistryCanonicalForm
         Add("shrinkage", parameters.Shrinkage);
         Add("l2", parameters.L2);
         Add("temperature", parameters.Temperature);
+        Add("probability_weight", parameters.ProbabilityWeight);
         sb.Append('}');
     }
 

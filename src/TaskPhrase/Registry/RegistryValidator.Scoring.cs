@@ -3,7 +3,7 @@ namespace TaskPhrase.Registry;
 internal sealed partial class RegistryValidator
 {
     /// <summary>Keys of the mapping form of <c>scoring</c>.</summary>
-    internal static readonly string[] ScoringKeys = ["strategy", "shrinkage", "l2", "temperature"];
+    internal static readonly string[] ScoringKeys = ["strategy", "shrinkage", "l2", "temperature", "probability_weight"];
 
     /// <summary>
     /// <c>scoring: NAME</c>, or <c>scoring: {strategy: NAME, shrinkage: λ, l2: λ, temperature: T}</c> with the parameters
@@ -29,7 +29,9 @@ internal sealed partial class RegistryValidator
             "the share of the scaled identity mixed into the covariance, from 0 to 1; omit it for the Ledoit–Wolf estimate");
         double? l2 = ReadScoringNumber(scoring, "l2", strategy, ["head"], 0, 1000, lowOpen: true, "the head's L2 penalty, above 0 and at most 1000 (0.001 to 0.1 is usual)");
         double? temperature = ReadScoringNumber(scoring, "temperature", strategy, ["head"], 0.01, 100, lowOpen: false, "the head's softmax temperature, from 0.01 to 100 (1 to 4 is usual)");
-        var parameters = new ScoringParameters { Shrinkage = shrinkage, L2 = l2, Temperature = temperature };
+        double? weight = ReadScoringNumber(scoring, "probability_weight", strategy, ["head"], 0, 1, lowOpen: false,
+            "the weight of the head's probability against the centroid cosine in the task score, from 0 to 1 (0.5: their geometric mean)");
+        var parameters = new ScoringParameters { Shrinkage = shrinkage, L2 = l2, Temperature = temperature, ProbabilityWeight = weight };
         return (strategy, parameters.IsEmpty ? null : parameters);
     }
 

@@ -4,7 +4,7 @@ namespace TaskPhrase.Registry;
 
 /// <summary>
 /// Parameters of a registry's scoring strategy, from the mapping form of its <c>scoring</c> key
-/// (<c>scoring: {strategy: head, l2: 0.01, temperature: 2}</c>); usually written by <c>taskphrase tune</c>.
+/// (<c>scoring: {strategy: head, l2: 0.01, temperature: 2, probability_weight: 0.75}</c>); usually written by <c>taskphrase tune</c>.
 /// A null value keeps the built-in default. Immutable, value equality.
 /// </summary>
 public sealed record ScoringParameters
@@ -21,8 +21,14 @@ public sealed record ScoringParameters
     /// <summary>Softmax temperature of the learned head, in [0.01, 100] (strategy <c>head</c>); null for 1.</summary>
     public double? Temperature { get; init; }
 
+    /// <summary>
+    /// Weight of the learned head's probability against the centroid cosine in the task score, in [0, 1] (strategy
+    /// <c>head</c>); null for 0.5, the geometric mean.
+    /// </summary>
+    public double? ProbabilityWeight { get; init; }
+
     /// <summary>True when no parameter is set (the plain <c>scoring: NAME</c> form says the same).</summary>
-    public bool IsEmpty => Shrinkage is null && L2 is null && Temperature is null;
+    public bool IsEmpty => Shrinkage is null && L2 is null && Temperature is null && ProbabilityWeight is null;
 
     /// <summary>The set parameters as <c>key value</c> pairs in registry key order, e.g. <c>l2 0.01, temperature 2</c>; empty when none.</summary>
     public override string ToString()
@@ -31,6 +37,7 @@ public sealed record ScoringParameters
         if (Shrinkage is { } s) parts.Add("shrinkage " + s.ToString("R", CultureInfo.InvariantCulture));
         if (L2 is { } l) parts.Add("l2 " + l.ToString("R", CultureInfo.InvariantCulture));
         if (Temperature is { } t) parts.Add("temperature " + t.ToString("R", CultureInfo.InvariantCulture));
+        if (ProbabilityWeight is { } w) parts.Add("probability_weight " + w.ToString("R", CultureInfo.InvariantCulture));
         return string.Join(", ", parts);
     }
 }

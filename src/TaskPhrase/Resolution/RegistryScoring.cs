@@ -26,6 +26,7 @@ internal static class RegistryScoring
         if (parameters.Shrinkage is { } s) result = result with { Shrinkage = s };
         if (parameters.L2 is { } l2) result = result with { L2 = l2 };
         if (parameters.Temperature is { } t) result = result with { Temperature = t };
+        if (parameters.ProbabilityWeight is { } w) result = result with { ProbabilityWeight = w };
         return result;
     }
 }

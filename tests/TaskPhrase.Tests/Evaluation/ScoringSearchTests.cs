@@ -59,7 +59,7 @@ public class ScoringSearchTests(ModelFixture fixture)
         var search = ScoringSearch.Run(registry, fixture.Embedder, cases, budgets, ScoringCandidate.DefaultGrid());
 
         Assert.True(search.Result.Feasible);
-        Assert.Equal(17, search.Outcomes.Count);
+        Assert.Equal(35, search.Outcomes.Count);
         Assert.Equal(search.Chosen, search.Result.Scoring);
         // The winner has the most correct acceptances among the feasible settings, at least the centroid's.
         int best = search.Outcomes.Where(o => o.Result.Feasible).Max(o => o.Result.Metrics.InScopeAccuracy.Count);
@@ -69,7 +69,7 @@ public class ScoringSearchTests(ModelFixture fixture)
         var (tuned, text) = Tuned(yaml, search);
         Assert.Equal(search.Chosen.Strategy, tuned.Settings.Scoring);
         Assert.Equal(search.Chosen.Parameters, tuned.Settings.ScoringParameters);
-        Assert.Contains($"Scoring: {search.Chosen.Label}, the best of 17 settings", text);
+        Assert.Contains($"Scoring: {search.Chosen.Label}, the best of 35 settings", text);
         var (correct, wrong, fa, inScope, oos) = Count(TaskResolver.Create(tuned, fixture.Embedder), cases);
         Assert.True(fa <= 0.05 * oos, $"{fa} of {oos} out-of-scope probes accepted");
         Assert.Equal(0, wrong);
@@ -183,6 +183,6 @@ public class ScoringSearchTests(ModelFixture fixture)
         var e = Assert.Throws<ArgumentException>(() => ScoringCandidate.DefaultGrid(["centroid", "heads"]));
         Assert.Contains("'heads' is not a scoring strategy", e.Message);
         Assert.Equal(["head"], ScoringCandidate.DefaultGrid(["head"]).Select(c => c.Strategy).Distinct());
-        Assert.Equal(9, ScoringCandidate.DefaultGrid(["head"]).Count);
+        Assert.Equal(27, ScoringCandidate.DefaultGrid(["head"]).Count);
     }
 }

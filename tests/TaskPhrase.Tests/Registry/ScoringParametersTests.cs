@@ -18,10 +18,10 @@ public class ScoringParametersTests
     [Fact]
     public void Parse_MappingForm_ReadsStrategyAndParameters()
     {
-        var r = Parse("scoring:\n  strategy: head\n  shrinkage: 0.5\n  l2: 0.01\n  temperature: 2");
+        var r = Parse("scoring:\n  strategy: head\n  shrinkage: 0.5\n  l2: 0.01\n  temperature: 2\n  probability_weight: 0.75");
         Assert.True(r.Registry is not null, string.Join("; ", r.Diagnostics));
         Assert.Equal("head", r.Registry!.Settings.Scoring);
-        Assert.Equal(new ScoringParameters { Shrinkage = 0.5, L2 = 0.01, Temperature = 2 }, r.Registry.Settings.ScoringParameters);
+        Assert.Equal(new ScoringParameters { Shrinkage = 0.5, L2 = 0.01, Temperature = 2, ProbabilityWeight = 0.75 }, r.Registry.Settings.ScoringParameters);
     }
 
     [Fact]
@@ -63,6 +63,8 @@ public class ScoringParametersTests
     [InlineData("scoring: {l2: 0.01}", "has no 'strategy'")]
     [InlineData("scoring: {strategy: heads}", "did you mean 'head'")]
     [InlineData("scoring: {strategy: head, l2: lots}", "must be a number")]
+    [InlineData("scoring: {strategy: centroid, probability_weight: 0.7}", "applies to the strategy head only")]
+    [InlineData("scoring: {strategy: head, probability_weight: 1.5}", "out of range")]
     public void Parse_BadMapping_SaysWhatIsWrong(string scoring, string expected)
     {
         var r = Parse(scoring);

@@ -41,6 +41,40 @@ public class RegistryScoringParametersTests(ModelFixture fixture)
     }
 
     [Fact]
+    public async Task Resolve_ProbabilityWeight_MovesTheScoreBetweenProbabilityAndCentroidCosine()
+    {
+        // α = 1: the score is the head's probability; α = 0: the cosine to the task centroid, exactly what the centroid
+        // strategy scores; α = 0.5: their geometric mean.
+        const string utterance = "please give the fish some food";
+        var vector = (await fixture.Embedder.GenerateAsync([utterance]))[0].Vector.ToArray();
+        var half = TaskResolver.Create(Registry("scoring: head"), fixture.Embedder);
+        var p = new float[half.Head!.Classes];
+        half.Head.Predict(vector, p, new float[half.Head.Dimensions]);
+        float cos = TaskResolver.Create(Registry("scoring: centroid"), fixture.Embedder).Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        float Score(string scoring) => TaskResolver.Create(Registry(scoring), fixture.Embedder).Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        Assert.Equal(p[2], Score("scoring: {strategy: head, probability_weight: 1}"), 5);
+        Assert.Equal(cos, Score("scoring: {strategy: head, probability_weight: 0}"), 5);
+        Assert.Equal(Math.Pow(p[2], 0.75) * Math.Pow(cos, 0.25), Score("scoring: {strategy: head, probability_weight: 0.75}"), 5);
+        Assert.Equal(MathF.Sqrt(p[2] * cos), half.Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score, 5);
+    }
+
+    [Fact]
+    public void ToBytes_ProbabilityWeight_RoundTripsAndTheDefaultKeepsFormatVersionOne()
+    {
+        var head = TaskResolver.Create(Registry("scoring: head"), fixture.Embedder).Head!;
+        byte[] plain = head.ToBytes();
+        Assert.Equal(1, plain[4] | plain[5] << 8); // version 1 layout unchanged for the default weight
+        var weighted = head.WithProbabilityWeight(0.25);
+        byte[] bytes = weighted.ToBytes();
+        Assert.Equal(2, bytes[4] | bytes[5] << 8);
+        Assert.Equal(plain.Length + 8, bytes.Length);
+        var back = TaskHead.FromBytes(bytes);
+        Assert.Equal(0.25, back.ProbabilityWeight);
+        Assert.Equal(bytes, back.ToBytes());
+        Assert.Equal(TaskHead.DefaultProbabilityWeight, TaskHead.FromBytes(plain).ProbabilityWeight);
+    }
+
+    [Fact]
     public void Create_ExplicitStrategy_KeepsTheOptionsLearnedSettings()
     {
         var registry = Registry("scoring: {strategy: head, l2: 0.1}");

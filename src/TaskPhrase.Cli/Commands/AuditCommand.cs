@@ -37,12 +37,6 @@ internal static class AuditCommand
             var report = AuditEvaluator.Evaluate(suite.Cases, resolutions, AuditContext.Create(resolver.Registry, resolver.Model, suite, DateTimeOffset.UtcNow));
             var budget = new AuditBudget(parse.GetValue(maxFalseAccept), parse.GetValue(maxWrongTask), parse.GetValue(minAccuracy));
             var violations = report.CheckBudgets(budget);
-            if (parse.GetValue(html) is { } htmlPath)
-            {
-                using var file = new StreamWriter(htmlPath);
-                AuditHtmlReport.Write(report, file, budget);
-                context.Err.WriteLine($"wrote {htmlPath}");
-            }
             // What a stricter wrong-task budget would cost on this suite (thresholds re-chosen per cap, false accepts kept
             // at the rate the registry's current thresholds give).
             var scored = suite.Cases.Select((c, i) => ScoredProbe.From(c, resolutions[i])).ToList();
@@ -50,6 +44,12 @@ internal static class AuditCommand
             var tradeOff = report.Counts.InScope > 0 && report.Counts.OutOfScope > 0
                 ? new ThresholdTuner().TuneForBudgets(scored, new TuningBudgets(report.FalseAcceptRate.Value)).TradeOff
                 : [];
+            if (parse.GetValue(html) is { } htmlPath)
+            {
+                using var file = new StreamWriter(htmlPath);
+                AuditHtmlReport.Write(report, file, budget, tradeOff);
+                context.Err.WriteLine($"wrote {htmlPath}");
+            }
             if (parse.GetValue(json))
             {
                 var node = System.Text.Json.Nodes.JsonNode.Parse(AuditJson.ToJson(report, budget))!.AsObject();

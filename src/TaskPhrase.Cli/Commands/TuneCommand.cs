@@ -10,7 +10,9 @@ namespace TaskPhrase.Cli.Commands;
 /// <summary>
 /// <c>taskphrase tune</c>: chooses the accept threshold and margin (and per-task overrides where the data supports
 /// them) from a probe suite, under false-accept and wrong-task budgets or a split-conformal coverage target, and
-/// writes a copy of the registry with the values and how they were obtained. No feasible setting → exit 1.
+/// writes a copy of the registry with the values and how they were obtained. With budgets, the scoring strategy and
+/// its parameters are searched jointly with the thresholds (<see cref="ScoringSearch"/>; <c>--strategies</c> restricts
+/// it). No feasible setting → exit 1, with the best it could do.
 /// </summary>
 internal static class TuneCommand
 {
@@ -23,11 +25,15 @@ internal static class TuneCommand
         var maxFalseAccept = AuditCommand.RateOption("--max-false-accept", "Highest false-accept rate allowed on the suite (0..1).");
         var maxWrongTask = AuditCommand.RateOption("--max-wrong-task", "Highest wrong-task rate allowed on the suite (0..1).");
         var coverage = AuditCommand.RateOption("--coverage", "Instead of budgets: accept at least this share of in-scope probes (split conformal).");
+        var strategies = new Option<string?>("--strategies")
+        {
+            Description = "Budget mode: scoring strategies to search, comma-separated (" + string.Join(", ", ScoringCandidate.StrategyNames) + "); default all.",
+        };
         var json = CommonOptions.Json();
         var model = CommonOptions.Model();
         var command = new Command("tune", "Choose thresholds from a probe suite under false-accept / wrong-task budgets or a coverage target.")
         {
-            registry, probes, output, maxFalseAccept, maxWrongTask, coverage, json, model,
+            registry, probes, output, maxFalseAccept, maxWrongTask, coverage, strategies, json, model,
         };
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
@@ -36,36 +42,74 @@ internal static class TuneCommand
                 throw new CliException("tune: give either --coverage R or budgets (--max-false-accept R [--max-wrong-task R]), not both.");
             if (cover is null && far is null)
                 throw new CliException("tune: give --max-false-accept R (optionally with --max-wrong-task R), or --coverage R.");
+            string? strategyList = parse.GetValue(strategies);
+            if (cover is not null && strategyList is not null)
+                throw new CliException("tune: --strategies applies to budget tuning (--max-false-accept); coverage tuning keeps the registry's scoring.");
+            IReadOnlyList<ScoringCandidate>? candidates = null;
+            if (cover is null)
+            {
+                try
+                {
+                    candidates = ScoringCandidate.DefaultGrid(strategyList?.Split(','));
+                }
+                catch (ArgumentException e)
+                {
+                    throw new CliException("tune: --strategies: " + e.Message.Split(" (Parameter")[0]);
+                }
+            }
             string registryPath = parse.GetValue(registry)!, probesPath = parse.GetValue(probes)!;
             var loaded = ResolverFactory.LoadRegistry(registryPath);
             using var lease = context.Model(parse.GetValue(model));
-            var resolver = TaskPhrase.Resolution.TaskResolver.Create(loaded, lease.Embedder);
             var suite = ProbeRunner.LoadSuite(probesPath, loaded);
-            var resolutions = ProbeRunner.ResolveAll(context, resolver, suite.Cases);
-            var scored = suite.Cases.Select((c, i) => ScoredProbe.From(c, resolutions[i])).ToList();
-            var tuner = new ThresholdTuner();
-            var result = cover is { } r
-                ? tuner.TuneForCoverage(scored, r, loaded.Defaults.Margin)
-                : tuner.TuneForBudgets(scored, new TuningBudgets(far!.Value, wrong));
+            TuningResult result;
+            ScoringSearchResult? search = null;
+            if (cover is { } r)
+            {
+                var resolver = TaskPhrase.Resolution.TaskResolver.Create(loaded, lease.Embedder);
+                var resolutions = ProbeRunner.ResolveAll(context, resolver, suite.Cases);
+                var scored = suite.Cases.Select((c, i) => ScoredProbe.From(c, resolutions[i])).ToList();
+                result = new ThresholdTuner().TuneForCoverage(scored, r, loaded.Defaults.Margin);
+            }
+            else
+            {
+                search = ScoringSearch.Run(loaded, lease.Embedder, suite.Cases, new TuningBudgets(far!.Value, wrong), candidates!,
+                    progress: p => ReportProgress(context, p));
+                result = search.Result;
+            }
             string suiteHash = Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(probesPath)));
-            string comment = TunedRegistryWriter.BuildProvenanceComment(result, Path.GetFileName(probesPath), suiteHash, DateTimeOffset.UtcNow);
+            string comment = TunedRegistryWriter.BuildProvenanceComment(result, Path.GetFileName(probesPath), suiteHash, DateTimeOffset.UtcNow, search?.Outcomes);
             string outPath = parse.GetValue(output)!;
             if (result.Feasible)
             {
                 using var writer = new StreamWriter(outPath);
                 TunedRegistryWriter.WriteFromFile(registryPath, result, comment, writer);
             }
-            if (parse.GetValue(json)) WriteJson(context, result, outPath);
-            else WriteHuman(context, result, outPath);
+            if (parse.GetValue(json)) WriteJson(context, result, search, outPath);
+            else WriteHuman(context, result, search, outPath);
             return result.Feasible ? ExitCodes.Success : ExitCodes.CheckFailed;
         }));
         return command;
     }
 
-    private static void WriteHuman(CliContext context, TuningResult result, string outPath)
+    /// <summary>One line per scoring setting on standard error: which one is being scored, then what it reached.</summary>
+    private static void ReportProgress(CliContext context, ScoringSearchProgress p)
+    {
+        if (p.Result is not { } r)
+        {
+            if (context.Interactive) context.Err.WriteLine($"[{p.Index + 1}/{p.Count}] scoring the suite with {p.Candidate.Label} …");
+            return;
+        }
+        var m = r.Metrics;
+        context.Err.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"[{p.Index + 1}/{p.Count}] {p.Candidate.Label}: in-scope accuracy {m.InScopeAccuracy.Value:P1}, wrong task {m.WrongTaskRate.Value:P1}, false accept {m.FalseAcceptRate.Value:P1}{(r.Feasible ? "" : " (budgets not met)")}"));
+    }
+
+    private static void WriteHuman(CliContext context, TuningResult result, ScoringSearchResult? search, string outPath)
     {
         var console = context.Console();
         var m = result.Metrics;
+        if (result.Scoring is { } scoring)
+            console.MarkupLine($"scoring {Markup.Escape(scoring.Label)} (best of {search?.Outcomes.Count ?? 1} settings searched)");
         console.MarkupLine(result.Feasible
             ? $"[green]tuned[/] accept {result.Accept.ToString("0.000", CultureInfo.InvariantCulture)}, margin {result.Margin.ToString("0.000", CultureInfo.InvariantCulture)}{(result.AcceptOverrides.Count > 0 ? $", {result.AcceptOverrides.Count} per-task override(s)" : "")} → {Markup.Escape(outPath)}"
             : "[red]no setting meets the budgets[/]; the best it could do:");
@@ -81,12 +125,30 @@ internal static class TuneCommand
         console.MarkupLine("[yellow]These figures come from the tuning suite itself: confirm them with 'taskphrase audit' on a separate suite.[/]");
     }
 
-    private static void WriteJson(CliContext context, TuningResult result, string outPath)
+    private static void WriteScoring(Utf8JsonWriter writer, string name, ScoringCandidate? scoring)
+    {
+        if (scoring is null)
+        {
+            writer.WriteNull(name);
+            return;
+        }
+        writer.WriteStartObject(name);
+        writer.WriteString("strategy", scoring.Strategy);
+        var p = scoring.Parameters;
+        if (p?.Shrinkage is { } s) writer.WriteNumber("shrinkage", s); else writer.WriteNull("shrinkage");
+        if (p?.L2 is { } l2) writer.WriteNumber("l2", l2); else writer.WriteNull("l2");
+        if (p?.Temperature is { } t) writer.WriteNumber("temperature", t); else writer.WriteNull("temperature");
+        if (p?.ProbabilityWeight is { } w) writer.WriteNumber("probability_weight", w); else writer.WriteNull("probability_weight");
+        writer.WriteEndObject();
+    }
+
+    private static void WriteJson(CliContext context, TuningResult result, ScoringSearchResult? search, string outPath)
     {
         using var writer = new Utf8JsonWriter(CliRunner.StdoutStream(context), new JsonWriterOptions { Indented = true });
         writer.WriteStartObject();
         writer.WriteBoolean("feasible", result.Feasible);
         writer.WriteString("mode", result.Mode.ToString().ToLowerInvariant());
+        WriteScoring(writer, "scoring", result.Scoring);
         writer.WriteNumber("accept", Math.Round(result.Accept, 6));
         writer.WriteNumber("margin", Math.Round(result.Margin, 6));
         writer.WriteStartObject("accept_overrides");
@@ -114,6 +176,20 @@ internal static class TuneCommand
             writer.WriteBoolean("feasible", p.Feasible);
             writer.WriteNumber("in_scope_accuracy", p.InScopeAccuracy);
             writer.WriteNumber("wrong_task_rate", p.WrongTaskRate);
+            writer.WriteEndObject();
+        }
+        writer.WriteEndArray();
+        writer.WriteStartArray("searched");
+        foreach (var o in search?.Outcomes ?? [])
+        {
+            writer.WriteStartObject();
+            WriteScoring(writer, "scoring", o.Candidate);
+            writer.WriteBoolean("feasible", o.Result.Feasible);
+            writer.WriteNumber("accept", Math.Round(o.Result.Accept, 6));
+            writer.WriteNumber("margin", Math.Round(o.Result.Margin, 6));
+            Rate("in_scope_accuracy", o.Result.Metrics.InScopeAccuracy);
+            Rate("wrong_task_rate", o.Result.Metrics.WrongTaskRate);
+            Rate("false_accept_rate", o.Result.Metrics.FalseAcceptRate);
             writer.WriteEndObject();
         }
         writer.WriteEndArray();

@@ -26,17 +26,22 @@ public static partial class AuditHtmlReport
     /// <param name="report">The report.</param>
     /// <param name="writer">The destination.</param>
     /// <param name="budget">When given, the header shows the verdict and the summary table marks each budget pass or fail.</param>
-    public static void Write(AuditReport report, TextWriter writer, AuditBudget? budget = null)
+    /// <param name="tradeOff">
+    /// When given (for example <see cref="TuningResult.TradeOff"/> of a tuning of the same suite), a section charts the best
+    /// in-scope accuracy against the wrong-task rate for each cap, with the registry's current operating point.
+    /// </param>
+    public static void Write(AuditReport report, TextWriter writer, AuditBudget? budget = null, IReadOnlyList<TradeOffPoint>? tradeOff = null)
     {
         ArgumentNullException.ThrowIfNull(report);
         ArgumentNullException.ThrowIfNull(writer);
-        writer.Write(ToHtml(report, budget));
+        writer.Write(ToHtml(report, budget, tradeOff));
     }
 
     /// <summary>The report page as a string (see <see cref="Write"/>).</summary>
     /// <param name="report">The report.</param>
     /// <param name="budget">Optional budget to check and show.</param>
-    public static string ToHtml(AuditReport report, AuditBudget? budget = null)
+    /// <param name="tradeOff">Optional wrong-task trade-off curve to chart (see <see cref="Write"/>).</param>
+    public static string ToHtml(AuditReport report, AuditBudget? budget = null, IReadOnlyList<TradeOffPoint>? tradeOff = null)
     {
         ArgumentNullException.ThrowIfNull(report);
         // All formatting below is explicit, but interpolated integers still consult the current culture; pin it.
@@ -44,7 +49,7 @@ public static partial class AuditHtmlReport
         CultureInfo.CurrentCulture = CultureInfo.InvariantCulture;
         try
         {
-            return Build(report, budget);
+            return Build(report, budget, tradeOff);
         }
         finally
         {
@@ -52,7 +57,7 @@ public static partial class AuditHtmlReport
         }
     }
 
-    private static string Build(AuditReport report, AuditBudget? budget)
+    private static string Build(AuditReport report, AuditBudget? budget, IReadOnlyList<TradeOffPoint>? tradeOff)
     {
         var ctx = report.Context;
         var violations = budget is null ? [] : report.CheckBudgets(budget);
@@ -66,6 +71,7 @@ public static partial class AuditHtmlReport
 
         Header(sb, report, budget, violations);
         sb.Append("<nav aria-label=\"Sections\"><a href=\"#summary\">Summary</a><a href=\"#scores\">Scores</a><a href=\"#roc\">ROC and sweep</a>")
+          .Append(tradeOff is { Count: > 0 } ? "<a href=\"#tradeoff\">Trade-off</a>" : "")
           .Append("<a href=\"#tasks\">Tasks</a><a href=\"#kinds\">Kinds and reasons</a><a href=\"#confusion\">Confusion</a><a href=\"#worst\">Worst cases</a><a href=\"#failures\">All failures</a></nav>\n");
         sb.Append("<main>\n");
         Findings(sb, report, violations);
@@ -82,6 +88,7 @@ public static partial class AuditHtmlReport
         SweepChart(sb, report, budget);
         sb.Append("<figcaption>Approximation: a probe counts as accepted at t when it was accepted with score ≥ t, or rejected only as out_of_scope with score ≥ t (as its best task). Later guards are not re-run and per-task thresholds are ignored.</figcaption></figure>\n</div>\n</section>\n");
 
+        if (tradeOff is { Count: > 0 }) TradeOffSection(sb, report, tradeOff);
         Tasks(sb, report);
         KindsAndReasons(sb, report);
         Confusion(sb, report);

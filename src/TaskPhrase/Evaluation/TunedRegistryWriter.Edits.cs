@@ -33,6 +33,7 @@ public static partial class TunedRegistryWriter
         var root = Parse(text, source);
         var context = new EditContext(text, source, newline);
         EditDefaults(context, root, result);
+        EditScoring(context, root, result);
         EditTasks(context, root, result);
 
         var sb = new StringBuilder(text);
@@ -137,6 +138,41 @@ public static partial class TunedRegistryWriter
         c.Add(at, at, block);
     }
 
+    /// <summary>
+    /// Writes the chosen scoring setting as the root <c>scoring</c> key (replacing the old value, or added before
+    /// <c>tasks</c>): the plain name when it has no parameters, else a block mapping with strategy and parameters.
+    /// </summary>
+    private static void EditScoring(EditContext c, YamlMappingNode root, TuningResult result)
+    {
+        if (result.Scoring is not { } scoring) return;
+        string indent = new(' ', Column(root.Children.First().Key));
+        string text = ScoringText(scoring, indent, c.Newline);
+        var value = Find(root, "scoring", out var key);
+        if (key is not null)
+        {
+            c.Add(Index(key.Start), NodeEnd(c.Text, value!), text);
+            return;
+        }
+        int at = Find(root, "tasks", out var tasksKey) is not null
+            ? BackOverComments(c.Text, LineStart(c.Text, Index(tasksKey!.Start)))
+            : c.Text.Length;
+        string block = text + c.Newline;
+        if (at == c.Text.Length && at > 0 && c.Text[^1] != '\n') block = c.Newline + block;
+        c.Add(at, at, block);
+    }
+
+    private static string ScoringText(ScoringCandidate scoring, string indent, string newline)
+    {
+        var p = scoring.Parameters;
+        if (p is null || p.IsEmpty) return $"scoring: {scoring.Strategy}";
+        var sb = new StringBuilder($"scoring:{newline}{indent}  strategy: {scoring.Strategy}");
+        if (p.Shrinkage is { } s) sb.Append($"{newline}{indent}  shrinkage: {ScoringCandidate.Format(s)}");
+        if (p.L2 is { } l2) sb.Append($"{newline}{indent}  l2: {ScoringCandidate.Format(l2)}");
+        if (p.Temperature is { } t) sb.Append($"{newline}{indent}  temperature: {ScoringCandidate.Format(t)}");
+        if (p.ProbabilityWeight is { } w) sb.Append($"{newline}{indent}  probability_weight: {ScoringCandidate.Format(w)}");
+        return sb.ToString();
+    }
+
     private static void EditTasks(EditContext c, YamlMappingNode root, TuningResult result)
     {
         if (Find(root, "tasks", out var tasksKey) is not YamlSequenceNode tasks)
@@ -221,6 +257,20 @@ public static partial class TunedRegistryWriter
             || (Find(defaults, "margin", out _) as YamlScalarNode)?.Value != FormatNumber(result.Margin))
         {
             throw new InvalidOperationException(Problem("does not hold the tuned defaults"));
+        }
+        if (result.Scoring is { } scoring)
+        {
+            var node = Find(root, "scoring", out _);
+            var p = scoring.Parameters;
+            bool ok = p is null || p.IsEmpty
+                ? (node as YamlScalarNode)?.Value == scoring.Strategy
+                : node is YamlMappingNode m
+                    && (Find(m, "strategy", out _) as YamlScalarNode)?.Value == scoring.Strategy
+                    && (Find(m, "shrinkage", out _) as YamlScalarNode)?.Value == (p.Shrinkage is { } s ? ScoringCandidate.Format(s) : null)
+                    && (Find(m, "l2", out _) as YamlScalarNode)?.Value == (p.L2 is { } l ? ScoringCandidate.Format(l) : null)
+                    && (Find(m, "temperature", out _) as YamlScalarNode)?.Value == (p.Temperature is { } t ? ScoringCandidate.Format(t) : null)
+                    && (Find(m, "probability_weight", out _) as YamlScalarNode)?.Value == (p.ProbabilityWeight is { } w ? ScoringCandidate.Format(w) : null);
+            if (!ok) throw new InvalidOperationException(Problem("does not hold the chosen scoring setting"));
         }
         if (Find(root, "tasks", out _) is not YamlSequenceNode tasks) throw new InvalidOperationException(Problem("lost its task list"));
         foreach (var task in tasks.Children.OfType<YamlMappingNode>())

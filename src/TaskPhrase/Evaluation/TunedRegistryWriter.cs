@@ -5,7 +5,8 @@ namespace TaskPhrase.Evaluation;
 
 /// <summary>
 /// Writes a copy of a registry file with tuned thresholds (<c>tune --output</c>): <c>defaults.accept</c> and
-/// <c>defaults.margin</c> set (the <c>defaults</c> block added when missing), per-task <c>accept</c> overrides set,
+/// <c>defaults.margin</c> set (the <c>defaults</c> block added when missing), the <c>scoring</c> key set when the
+/// tuning chose a scoring setting (<see cref="TuningResult.Scoring"/>), per-task <c>accept</c> overrides set,
 /// and a comment block at the top recording how the values were obtained. Everything else (comments, key order,
 /// quoting, blank lines) is kept: the file is edited line by line at the positions YamlDotNet's parser reports.
 /// </summary>
@@ -73,8 +74,10 @@ public static partial class TunedRegistryWriter
     /// <param name="suiteName">Name (or path) of the tuning probe suite.</param>
     /// <param name="suiteSha256">SHA-256 of the suite file, lower-case hex.</param>
     /// <param name="when">When the tuning ran; written as a UTC date and time.</param>
+    /// <param name="searched">The settings a <see cref="ScoringSearch"/> tried, or null when the scoring was not searched.</param>
     /// <exception cref="ArgumentNullException">An argument is null.</exception>
-    public static string BuildProvenanceComment(TuningResult result, string suiteName, string suiteSha256, DateTimeOffset when)
+    public static string BuildProvenanceComment(TuningResult result, string suiteName, string suiteSha256, DateTimeOffset when,
+        IReadOnlyList<ScoringSearchOutcome>? searched = null)
     {
         ArgumentNullException.ThrowIfNull(result);
         ArgumentNullException.ThrowIfNull(suiteName);
@@ -96,6 +99,12 @@ public static partial class TunedRegistryWriter
         }
         string overrides = result.AcceptOverrides.Count == 0 ? "none"
             : string.Join(", ", result.AcceptOverrides.OrderBy(o => o.Key, StringComparer.Ordinal).Select(o => $"{o.Key} {FormatNumber(o.Value)}"));
+        if (result.Scoring is { } scoring)
+        {
+            sb.AppendLine(searched is { Count: > 0 }
+                ? $"Scoring: {scoring.Label}, the best of {searched.Count} settings searched jointly with the thresholds ({string.Join(", ", searched.Select(o => o.Candidate.Strategy).Distinct(StringComparer.Ordinal))})."
+                : $"Scoring: {scoring.Label}.");
+        }
         sb.AppendLine($"Chosen: accept {FormatNumber(result.Accept)}, margin {FormatNumber(result.Margin)}; per-task accept: {overrides}.");
         sb.AppendLine($"Achieved on the tuning suite: in-scope accuracy {m.InScopeAccuracy}, wrong-task rate {m.WrongTaskRate},");
         sb.AppendLine($"  false-reject rate {m.FalseRejectRate}, false-accept rate {m.FalseAcceptRate}.");

@@ -56,6 +56,12 @@ public sealed record TuningResult
     /// <summary>Human-readable remarks on the search (overrides considered or skipped, quantile details).</summary>
     public IReadOnlyList<string> Notes { get; init; } = [];
 
+    /// <summary>
+    /// The scoring setting the thresholds were chosen for, when <see cref="ScoringSearch"/> chose it (the tuned registry
+    /// then carries it as its <c>scoring</c> key); null when the registry's own scoring was kept.
+    /// </summary>
+    public ScoringCandidate? Scoring { get; init; }
+
     /// <summary>Number of scored probes the tuning used.</summary>
     public required int ProbeCount { get; init; }
 }

@@ -71,7 +71,7 @@ public static class RegistryCanonicalForm
         sb.Append(",\"margin\":");
         AppendNumber(sb, defaults.Margin);
         sb.Append("},\"scoring\":");
-        AppendString(sb, settings.Scoring);
+        AppendScoring(sb, settings.Scoring, settings.ScoringParameters);
         sb.Append(",\"hazard_words\":");
         AppendList(sb, settings.HazardWords);
         sb.Append(",\"allow_words\":");
@@ -105,6 +105,32 @@ public static class RegistryCanonicalForm
         }
         sb.Append("]}");
         return sb.ToString();
+    }
+
+    /// <summary>
+    /// The plain name (so registries without parameters keep their hash), or <c>{"strategy":…,"shrinkage":…,"l2":…,"temperature":…,"probability_weight":…}</c>
+    /// with only the set parameters.
+    /// </summary>
+    private static void AppendScoring(StringBuilder sb, string? name, ScoringParameters? parameters)
+    {
+        if (parameters is null || parameters.IsEmpty || name is null)
+        {
+            AppendString(sb, name);
+            return;
+        }
+        sb.Append("{\"strategy\":");
+        AppendString(sb, name);
+        void Add(string key, double? value)
+        {
+            if (value is not double v) return;
+            if (!double.IsFinite(v)) throw new ArgumentException($"A scoring parameter must be finite, but '{key}' is {v}.");
+            sb.Append(",\"").Append(key).Append("\":").Append(v.ToString("R", CultureInfo.InvariantCulture));
+        }
+        Add("shrinkage", parameters.Shrinkage);
+        Add("l2", parameters.L2);
+        Add("temperature", parameters.Temperature);
+        Add("probability_weight", parameters.ProbabilityWeight);
+        sb.Append('}');
     }
 
     private static void AppendNumber(StringBuilder sb, float? value)

@@ -61,14 +61,14 @@ internal sealed partial class RegistryValidator
 
         string? modelId = ReadOptionalText(map, "model", "the registry", "name the model the thresholds were tuned for, e.g. all-minilm-l6-v2", normalize: true);
         var defaults = ReadDefaults(map);
-        string? scoring = ReadScoring(map);
+        var (scoring, scoringParameters) = ReadScoring(map);
         var hazardWords = ReadWordList(map, "hazard_words", "the registry");
         var allowWords = ReadWordList(map, "allow_words", "the registry");
         var tasks = ReadTasks(map);
         CheckMustReject();
 
         if (_bag.HasErrors) return null;
-        var settings = new RegistrySettings { Scoring = scoring, HazardWords = hazardWords, AllowWords = allowWords };
+        var settings = new RegistrySettings { Scoring = scoring, ScoringParameters = scoringParameters, HazardWords = hazardWords, AllowWords = allowWords };
         return new Parts(tasks, defaults, modelId, settings);
     }
 
@@ -112,17 +112,6 @@ internal sealed partial class RegistryValidator
         float accept = ReadThreshold(defaults, "accept", "'defaults'") ?? standard.Accept;
         float margin = ReadThreshold(defaults, "margin", "'defaults'") ?? standard.Margin;
         return new RegistryDefaults(accept, margin);
-    }
-
-    private string? ReadScoring(RegistryMapping map)
-    {
-        string? scoring = ReadOptionalText(map, "scoring", "the registry", "name a strategy: " + string.Join(", ", ScoringNames), normalize: false);
-        if (scoring is null || ScoringNames.Contains(scoring, StringComparer.Ordinal)) return scoring;
-        map.TryGet("scoring", out _, out var value);
-        string? suggestion = EditDistance.Suggest(scoring, ScoringNames);
-        _bag.Error(RegistryDiagnosticCodes.UnknownScoring, value.Position,
-            $"'{scoring}' is not a scoring strategy{(suggestion is null ? "" : $"; did you mean '{suggestion}'?")}. Use one of: {string.Join(", ", ScoringNames)}.");
-        return null;
     }
 
     private List<TaskDefinition> ReadTasks(RegistryMapping map)

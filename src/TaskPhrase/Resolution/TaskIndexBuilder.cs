@@ -60,7 +60,7 @@ public static class TaskIndexBuilder
             var phraseTask = new int[phraseCount];
             for (int t = 0, row = 0; t < registry.Tasks.Count; t++)
                 for (int p = 0; p < registry.Tasks[t].Phrases.Count; p++) phraseTask[row++] = t;
-            sections[HeadSection] = Scoring.TaskHead.Train(phrases, phraseTask, registry.Tasks.Count, rejects, dims, null).ToBytes();
+            sections[HeadSection] = Scoring.TaskHead.Train(phrases, phraseTask, registry.Tasks.Count, rejects, dims, RegistryScoring.LearnedFor(registry)).ToBytes();
         }
         TaskIndex.Write(path, registry, model, phrases, sections);
         return TaskIndex.Load(path, model, registry.ContentHash);

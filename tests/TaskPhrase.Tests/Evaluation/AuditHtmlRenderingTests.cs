@@ -8,7 +8,7 @@ namespace TaskPhrase.Tests.Evaluation;
 public sealed class AuditHtmlRenderingTests : IDisposable
 {
     private readonly string _dir = Directory.CreateTempSubdirectory("taskphrase-html-").FullName;
-    private readonly string _html = AuditHtmlReport.ToHtml(AuditScenario.Report(), new AuditBudget(maxFalseAccept: 0.1));
+    private readonly string _html = AuditHtmlReport.ToHtml(AuditScenario.Report(), new AuditBudget(maxFalseAccept: 0.1), AuditScenario.TradeOff);
 
     public void Dispose() => Directory.Delete(_dir, recursive: true);
 
@@ -23,7 +23,11 @@ public sealed class AuditHtmlRenderingTests : IDisposable
         // The browser's parsed DOM keeps every chart, table and section of the source: nothing was misnested.
         foreach (var tag in new[] { "<svg ", "<table ", "<section ", "<figure", "<details" })
             Assert.Equal(Regex.Matches(_html, Regex.Escape(tag)).Count, Regex.Matches(stdout, Regex.Escape(tag)).Count);
-        Assert.Equal(4, Regex.Matches(stdout, "<svg ").Count);
+        Assert.Equal(5, Regex.Matches(stdout, "<svg ").Count);
+        // The trade-off chart survived parsing with one marker per reachable cap and the current operating point.
+        Assert.Contains("<svg id=\"chart-tradeoff\"", stdout);
+        Assert.Equal(4, Regex.Matches(stdout, "class=\"curve-point\"").Count);
+        Assert.Contains("registry now", stdout);
         // The untrusted utterance stayed text: no script element appeared in the DOM.
         Assert.DoesNotContain("<script", stdout, StringComparison.OrdinalIgnoreCase);
         Assert.Contains("&lt;script&gt;alert(1)&lt;/script&gt;", stdout, StringComparison.Ordinal);

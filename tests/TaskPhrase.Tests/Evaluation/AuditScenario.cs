@@ -59,6 +59,18 @@ internal static class AuditScenario
 
     public static IReadOnlyList<ResolutionResult> Resolutions { get; } = Rows.Select(r => Resolve(r.Utterance, r.Outcome, r.Task, r.Score, r.Reason)).ToArray();
 
+    /// <summary>
+    /// A hand-made wrong-task trade-off curve for the report (caps 0, 5 %, 10 %, 20 %, 100 %; the strictest not reachable).
+    /// </summary>
+    public static IReadOnlyList<TradeOffPoint> TradeOff { get; } =
+    [
+        new(0.0, false, 0, 0, 0, null, null),
+        new(0.05, true, 0.25, 0.05, 0.1, 0.8f, 0.05f),
+        new(0.10, true, 0.40, 0.10, 0.1, 0.7f, 0.02f),
+        new(0.20, true, 0.50, 0.1667, 0.2, 0.6f, 0.01f),
+        new(1.0, true, 0.50, 0.1667, 0.2, 0.6f, 0.01f),
+    ];
+
     public static AuditReport Report(int worstCases = 10) => AuditEvaluator.Evaluate(Probes, Resolutions, Context(worstCases));
 
     public static ResolutionResult Resolve(string utterance, ResolutionOutcome outcome, string? task, float? score, RejectionReason reason,

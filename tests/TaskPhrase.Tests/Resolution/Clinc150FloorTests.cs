@@ -78,4 +78,28 @@ public class Clinc150FloorTests(ModelFixture fixture, ITestOutputHelper output)
         Assert.True(audit.FalseAcceptRate.Value <= 0.20, $"false-accept rate {audit.FalseAcceptRate.Value:P1}");
         Assert.True(audit.WrongTaskRate.Value <= 0.075, $"wrong-task rate {audit.WrongTaskRate.Value:P1}");
     }
+
+    [Fact]
+    public void JointSearch_TunedOnHalfA_AuditedOnHalfB_MeetsFloors()
+    {
+        // What 'taskphrase tune' chose on half A under false accepts <= 10 % and wrong task <= 5 % when the full default
+        // search (35 settings, ClincJointSearchMeasurement) ran: the head at L2 0.01, temperature 1, probability weight 0.25.
+        // Re-tuned here for that setting alone (the search tunes every setting independently, so this gives the same
+        // thresholds and overrides), then applied unchanged to half B.
+        var (halfA, halfB) = TaskPhrase.Tests.Resolution.Scoring.ClincJointSearchMeasurement.Halves();
+        var registry = ClincRegistry.Build(10);
+        var chosen = new ScoringCandidate("head", new ScoringParameters { L2 = 0.01, Temperature = 1, ProbabilityWeight = 0.25 });
+        var search = ScoringSearch.Run(registry, fixture.Embedder, halfA, new TuningBudgets(0.10, 0.05), [chosen]);
+        Assert.True(search.Result.Feasible);
+        var resolver = TaskResolver.Create(chosen.Apply(registry), fixture.Embedder);
+        var res = resolver.ResolveMany(halfB.Select(p => p.Utterance).ToList());
+        var audit = TuningMetrics.Evaluate(halfB.Select((p, i) => ScoredProbe.From(p, res[i])), search.Result.Rule);
+        output.WriteLine($"accept {search.Result.Accept:0.000}, margin {search.Result.Margin:0.000}, {search.Result.AcceptOverrides.Count} overrides; " +
+            $"half A: accuracy {search.Result.Metrics.InScopeAccuracy}; half B: accuracy {audit.InScopeAccuracy}, wrong task {audit.WrongTaskRate}, false accepts {audit.FalseAcceptRate}");
+        // Measured when set (docs/clinc150-strategies.md, "Joint search"): half B accuracy 75.5 % (1132/1500), wrong task
+        // 5.9 % (88/1500), false accepts 12 % (6 of 50; each one moves the rate by 2 points, so that ceiling is loose).
+        Assert.True(audit.InScopeAccuracy.Value >= 0.745, $"in-scope accuracy {audit.InScopeAccuracy.Value:P1}");
+        Assert.True(audit.WrongTaskRate.Value <= 0.065, $"wrong-task rate {audit.WrongTaskRate.Value:P1}");
+        Assert.True(audit.FalseAcceptRate.Value <= 0.16, $"false-accept rate {audit.FalseAcceptRate.Value:P1}");
+    }
 }

@@ -11,6 +11,7 @@ public sealed record LearnedScoringOptions
     private readonly double _l2 = 0.001;
     private readonly double _temperature = 1.0;
     private readonly int _maxIterations = 500;
+    private readonly double _probabilityWeight = TaskHead.DefaultProbabilityWeight;
     private readonly CovarianceKind _covariance = CovarianceKind.WithinTask;
 
     /// <summary>
@@ -55,6 +56,17 @@ public sealed record LearnedScoringOptions
     {
         get => _temperature;
         init => _temperature = value is >= 0.01 and <= 100 ? value : throw new ArgumentOutOfRangeException(nameof(Temperature), value, "Temperature must lie in [0.01, 100].");
+    }
+
+    /// <summary>
+    /// Weight α of the head's probability p against the centroid cosine c in the task score p^α · max(0, c)^(1 − α)
+    /// (resolve time, no retraining). Default 0.5, the geometric mean; 1 is p alone, 0 the centroid cosine alone.
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException">Not in [0, 1].</exception>
+    public double ProbabilityWeight
+    {
+        get => _probabilityWeight;
+        init => _probabilityWeight = value is >= 0 and <= 1 ? value : throw new ArgumentOutOfRangeException(nameof(ProbabilityWeight), value, "ProbabilityWeight must lie in [0, 1].");
     }
 
     /// <summary>Most L-BFGS iterations when training the head (default 500).</summary>

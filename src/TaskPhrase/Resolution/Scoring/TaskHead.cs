@@ -18,13 +18,20 @@ public sealed class TaskHead
     private const string Magic = "TPHD";
     private const ushort FormatVersion = 1;
 
+    /// <summary>Format version 2 adds the probability weight after the temperature; written only when it is not 0.5.</summary>
+    private const ushort WeightedFormatVersion = 2;
+
+    /// <summary>The probability weight of the geometric mean √(p · c), the default.</summary>
+    public const double DefaultProbabilityWeight = 0.5;
+
     private readonly float[] _weights; // Classes × Dimensions, row-major.
     private readonly float[] _bias;    // Classes.
     private readonly float[] _centroids; // TaskCount × Dimensions: normalised mean phrase embedding of each task.
 
     private TaskHead(Whitening whitening, bool hasReject, double l2, double temperature, int iterations, double loss,
-        string digest, float[] weights, float[] bias, float[] centroids)
+        string digest, float[] weights, float[] bias, float[] centroids, double probabilityWeight = DefaultProbabilityWeight)
     {
+        ProbabilityWeight = probabilityWeight;
         Whitening = whitening;
         HasRejectClass = hasReject;
         L2 = l2;
@@ -57,6 +64,12 @@ public sealed class TaskHead
 
     /// <summary>The softmax temperature applied at resolve time.</summary>
     public double Temperature { get; }
+
+    /// <summary>
+    /// Weight α of the head's probability in the task score p^α · max(0, c)^(1 − α) (c the cosine to the task's
+    /// centroid); 0.5, the geometric mean, by default. Applied at resolve time, like the temperature.
+    /// </summary>
+    public double ProbabilityWeight { get; }
 
     /// <summary>L-BFGS iterations the training took.</summary>
     public int Iterations { get; }
@@ -116,7 +129,7 @@ public sealed class TaskHead
         var centroids = new float[taskCount * d];
         for (int i = 0; i < phraseTask.Length; i++) Kernels.AddScaled(phrases.Slice(i * d, d), 1f, centroids.AsSpan(phraseTask[i] * d, d));
         for (int t = 0; t < taskCount; t++) Whitening.Normalize(centroids.AsSpan(t * d, d));
-        return new TaskHead(whitening, hasReject, options.L2, options.Temperature, result.Iterations, result.Value, digest, weights, bias, centroids);
+        return new TaskHead(whitening, hasReject, options.L2, options.Temperature, result.Iterations, result.Value, digest, weights, bias, centroids, options.ProbabilityWeight);
     }
 
     /// <summary>The head's input: the whitened embedding scaled to length √d (components of unit scale).</summary>
@@ -134,7 +147,15 @@ public sealed class TaskHead
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(temperature, 0.01);
         ArgumentOutOfRangeException.ThrowIfGreaterThan(temperature, 100);
-        return new TaskHead(Whitening, HasRejectClass, L2, temperature, Iterations, TrainingLoss, TrainingDigest, _weights, _bias, _centroids);
+        return new TaskHead(Whitening, HasRejectClass, L2, temperature, Iterations, TrainingLoss, TrainingDigest, _weights, _bias, _centroids, ProbabilityWeight);
+    }
+
+    /// <summary>The same head with another probability weight α (no retraining; see <see cref="ProbabilityWeight"/>).</summary>
+    /// <exception cref="ArgumentOutOfRangeException">Not in [0, 1].</exception>
+    public TaskHead WithProbabilityWeight(double weight)
+    {
+        if (!(weight is >= 0 and <= 1)) throw new ArgumentOutOfRangeException(nameof(weight), weight, "The probability weight must lie in [0, 1].");
+        return new TaskHead(Whitening, HasRejectClass, L2, Temperature, Iterations, TrainingLoss, TrainingDigest, _weights, _bias, _centroids, weight);
     }
 
     /// <summary>
@@ -163,10 +184,11 @@ public sealed class TaskHead
     /// <summary>
     /// Writes each task's score into <paramref name="scores"/> (<see cref="TaskCount"/> wide) and returns the
     /// look-alike class's probability (0 without one); <paramref name="bestTaskProbability"/> receives the highest task
-    /// probability. The score is √(p · max(0, c)): the geometric mean of the task's probability p and the cosine c of
-    /// the (unwhitened) embedding to the task's centroid, the normalised mean of its phrase embeddings: a task must be
-    /// both the head's choice and close to its own phrases to score high. On CLINC150 this kept out-of-scope queries
-    /// out better than p alone or the whitened cosine (see docs/clinc150-strategies.md).
+    /// probability. The score is p^α · max(0, c)^(1 − α) with α = <see cref="ProbabilityWeight"/>; by default √(p · max(0, c)),
+    /// the geometric mean of the task's probability p and the cosine c of the (unwhitened) embedding to the task's centroid,
+    /// the normalised mean of its phrase embeddings: a task must be both the head's choice and close to its own phrases
+    /// to score high. On CLINC150 this kept out-of-scope queries out better than p alone or the whitened cosine (see
+    /// docs/clinc150-strategies.md); <c>tune</c> can choose α.
     /// </summary>
     /// <exception cref="ArgumentException">A span has the wrong width.</exception>
     public float ScoreTasks(ReadOnlySpan<float> embedding, Span<float> scores, out float bestTaskProbability)
@@ -181,7 +203,9 @@ public sealed class TaskHead
         {
             bestTaskProbability = Math.Max(bestTaskProbability, p[t]);
             float c = Kernels.Dot(embedding, _centroids.AsSpan(t * d, d));
-            scores[t] = MathF.Sqrt(p[t] * Math.Max(0f, c));
+            scores[t] = ProbabilityWeight == DefaultProbabilityWeight
+                ? MathF.Sqrt(p[t] * Math.Max(0f, c))
+                : (float)(Math.Pow(p[t], ProbabilityWeight) * Math.Pow(Math.Max(0f, c), 1 - ProbabilityWeight));
         }
         return HasRejectClass ? p[TaskCount] : 0f;
     }
@@ -191,15 +215,18 @@ public sealed class TaskHead
     /// f64 L2, f64 temperature, i32 iterations, f64 training loss, the 32-byte training digest (length-prefixed), the
     /// whitening's payload (as in <see cref="Whitening.ToBytes"/>, without its magic and hash), the weights
     /// (f32 × classes × d, row-major), the biases (f32 × classes), the task centroids (f32 × tasks × d), and a
-    /// SHA-256 of all of it.
+    /// SHA-256 of all of it. A head whose <see cref="ProbabilityWeight"/> is not 0.5 is written as version 2, with the
+    /// weight (f64) after the temperature.
     /// </summary>
     public byte[] ToBytes()
     {
-        var w = new ScorerBytes.Writer(Magic, FormatVersion);
+        bool weighted = ProbabilityWeight != DefaultProbabilityWeight;
+        var w = new ScorerBytes.Writer(Magic, weighted ? WeightedFormatVersion : FormatVersion);
         w.Int32(Classes);
         w.Int32(HasRejectClass ? 1 : 0);
         w.Double(L2);
         w.Double(Temperature);
+        if (weighted) w.Double(ProbabilityWeight);
         w.Int32(Iterations);
         w.Double(TrainingLoss);
         w.Bytes(Convert.FromHexString(TrainingDigest));
@@ -214,9 +241,13 @@ public sealed class TaskHead
     /// <exception cref="FormatException">The bytes are not a task head of this format version, are truncated, inconsistent, or fail their SHA-256 check.</exception>
     public static TaskHead FromBytes(ReadOnlySpan<byte> bytes)
     {
-        var r = new ScorerBytes.Reader(bytes, Magic, FormatVersion, "task head");
+        ushort version = bytes.Length >= 6 && System.Buffers.Binary.BinaryPrimitives.ReadUInt16LittleEndian(bytes[4..]) == WeightedFormatVersion
+            ? WeightedFormatVersion : FormatVersion;
+        var r = new ScorerBytes.Reader(bytes, Magic, version, "task head");
         int classes = r.Int32(), flag = r.Int32();
         double l2 = r.Double(), temperature = r.Double();
+        double weight = version == WeightedFormatVersion ? r.Double() : DefaultProbabilityWeight;
+        if (!(weight is >= 0 and <= 1)) throw new FormatException($"The task head data has an invalid probability weight {weight}; it must lie in [0, 1].");
         int iterations = r.Int32();
         double loss = r.Double();
         if (flag is not (0 or 1) || !(l2 > 0) || !(temperature is >= 0.01 and <= 100) || iterations < 0)
@@ -229,7 +260,7 @@ public sealed class TaskHead
         var bias = r.Floats(classes);
         var centroids = r.Floats(checked(whitening.TaskCount * whitening.Dimensions));
         r.End();
-        return new TaskHead(whitening, flag == 1, l2, temperature, iterations, loss, digest, weights, bias, centroids);
+        return new TaskHead(whitening, flag == 1, l2, temperature, iterations, loss, digest, weights, bias, centroids, weight);
     }
 
     /// <summary>

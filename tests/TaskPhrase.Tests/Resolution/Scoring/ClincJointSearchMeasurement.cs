@@ -1,0 +1,82 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.Text;
+using TaskPhrase.Evaluation;
+using TaskPhrase.Resolution;
+using Xunit.Abstractions;
+
+namespace TaskPhrase.Tests.Resolution.Scoring;
+
+/// <summary>
+/// The production joint search (<see cref="ScoringSearch"/>, what <c>taskphrase tune</c> runs) on CLINC150 (Larson et al.,
+/// 2019, "An Evaluation Dataset for Intent Classification and Out-of-Scope Prediction", EMNLP-IJCNLP; CC BY 3.0) with
+/// the protocol of docs/clinc150-strategies.md: registries of the first k training queries per intent, the search on
+/// validation half A (even rows per intent) under false accepts ≤ 10 % and wrong task ≤ 5 %, the chosen rule then
+/// applied unchanged to half B (odd rows). Half B never enters the choice; its figures are printed for every setting
+/// only to show how each one generalises: for the chosen setting and for the best-on-A setting of each strategy (all
+/// settings when <c>TASKPHRASE_CLINC_ALL_B=1</c>; each head setting on B costs a training). k from <c>TASKPHRASE_CLINC_K</c>
+/// (comma-separated, default 10); lines are also appended to the file <c>TASKPHRASE_MEASURE_LOG</c> when set.
+/// </summary>
+[Collection(ModelCollection.Name)]
+public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
+{
+    internal static (List<ProbeCase> A, List<ProbeCase> B) Halves()
+    {
+        var a = new List<ProbeCase>();
+        var b = new List<ProbeCase>();
+        foreach (var (text, expect, half) in ClincEmbeddings.ValidationHalves()) (half == 0 ? a : b).Add(new ProbeCase(text, expect));
+        return (a, b);
+    }
+
+    internal static string Rate(RateEstimate r) => string.Create(CultureInfo.InvariantCulture,
+        $"{100 * r.Value:0.0} % ({r.Count}/{r.Total}; {100 * r.CiLow:0.0}–{100 * r.CiHigh:0.0})");
+
+    [MeasurementFact]
+    [Trait("tier", "measure")]
+    public void Measure_JointSearchOnHalfA_AuditOnHalfB_PrintsTable()
+    {
+        var ks = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "10").Split(',').Select(s => int.Parse(s, CultureInfo.InvariantCulture));
+        var (halfA, halfB) = Halves();
+        var budgets = new TuningBudgets(0.10, 0.05);
+        var table = new StringBuilder();
+        string? logPath = Environment.GetEnvironmentVariable("TASKPHRASE_MEASURE_LOG");
+        bool allB = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_ALL_B") == "1";
+        void Log(string line)
+        {
+            output.WriteLine(line);
+            if (logPath is { Length: > 0 }) File.AppendAllText(logPath, line + Environment.NewLine);
+        }
+        foreach (int k in ks)
+        {
+            var registry = ClincRegistry.Build(k);
+            var watch = Stopwatch.StartNew();
+            var search = ScoringSearch.Run(registry, fixture.Embedder, halfA, budgets, ScoringCandidate.DefaultGrid(),
+                progress: p =>
+                {
+                    if (p.Result is null) Log($"k={k} [{p.Index + 1}/{p.Count}] {p.Candidate.Label} at {watch.Elapsed.TotalSeconds:0} s");
+                    else Log(string.Create(CultureInfo.InvariantCulture, $"k={k}   A: {100 * p.Result.Metrics.InScopeAccuracy.Value:0.0} % / {100 * p.Result.Metrics.WrongTaskRate.Value:0.0} % / {100 * p.Result.Metrics.FalseAcceptRate.Value:0.0} %{(p.Result.Feasible ? "" : " (infeasible)")}"));
+                });
+            Log($"k={k}: search took {watch.Elapsed.TotalSeconds:0} s");
+            var bestPerStrategy = search.Outcomes.GroupBy(o => o.Candidate.Strategy)
+                .Select(g => g.Aggregate((x, y) => ScoringSearch.IsBetter(y.Result, x.Result) ? y : x).Candidate).ToHashSet();
+            var memo = new MemoizingEmbeddingGenerator(fixture.Embedder);
+            var textsB = halfB.Select(p => p.Utterance).ToList();
+            foreach (var o in search.Outcomes)
+            {
+                if (!allB && !bestPerStrategy.Contains(o.Candidate) && o.Candidate != search.Chosen) continue;
+                var resolver = TaskResolver.Create(o.Candidate.Apply(registry), memo);
+                var res = resolver.ResolveMany(textsB);
+                var audit = TuningMetrics.Evaluate(halfB.Select((p, i) => TaskPhrase.Evaluation.ScoredProbe.From(p, res[i])), o.Result.Rule);
+                var m = o.Result.Metrics;
+                string mark = o.Candidate == search.Chosen ? " **chosen**" : "";
+                string line = string.Create(CultureInfo.InvariantCulture,
+                    $"| {k} | {o.Candidate.Label}{mark} | {o.Result.Accept:0.000} | {o.Result.Margin:0.000} | {o.Result.AcceptOverrides.Count} | {100 * m.InScopeAccuracy.Value:0.0} % / {100 * m.WrongTaskRate.Value:0.0} % / {100 * m.FalseAcceptRate.Value:0.0} %{(o.Result.Feasible ? "" : " (infeasible)")} | {Rate(audit.InScopeAccuracy)} | {Rate(audit.WrongTaskRate)} | {Rate(audit.FalseAcceptRate)} |");
+                table.AppendLine(line);
+                Log(line);
+            }
+        }
+        output.WriteLine("| k | setting | accept | margin | overrides | A accuracy / wrong / false accept | B in-scope accuracy | B wrong task | B false accept |");
+        output.WriteLine("| --- | --- | --- | --- | --- | --- | --- | --- | --- |");
+        output.WriteLine(table.ToString());
+    }
+}

@@ -19,8 +19,9 @@ internal static class QuantizeCommand
         var alpha = new Option<double>("--alpha") { Description = "SmoothQuant migration strength, 0 to 1.", DefaultValueFactory = _ => 0.7 };
         alpha.Validators.Add(result =>
         {
-            double v = result.GetValueOrDefault<double>();
-            if (!(v >= 0 && v <= 1)) result.AddError($"--alpha must be between 0 and 1 (e.g. 0.7), not {v.ToString(CultureInfo.InvariantCulture)}.");
+            // Read the token, not the value: an unparsable token has its own parse error, and asking for its value throws.
+            if (result.Tokens is [{ } token] && double.TryParse(token.Value, NumberStyles.Float, CultureInfo.InvariantCulture, out double v)
+                && !(v >= 0 && v <= 1)) result.AddError($"--alpha must be between 0 and 1 (e.g. 0.7), not {v.ToString(CultureInfo.InvariantCulture)}.");
         });
         var json = CommonOptions.Json();
         var command = new Command("quantize", "Write an int8 variant of a model directory; refuses to write one that drifts from the fp32 model.")
@@ -46,9 +47,12 @@ internal static class QuantizeCommand
                 writer.WriteString("source_model_sha256", q.SourceModelSha256);
                 writer.WriteString("method", q.Method);
                 writer.WriteNumber("alpha", q.Alpha);
+                writer.WriteNumber("calibration_phrases", q.CalibrationPhrases);
+                writer.WriteString("calibration_set_sha256", q.CalibrationSetSha256);
                 writer.WriteNumber("quantized_matmuls", q.QuantizedMatMuls);
                 writer.WriteNumber("min_cosine", quality.MinCosine);
                 writer.WriteNumber("mean_cosine", quality.MeanCosine);
+                writer.WriteNumber("held_out_phrases", quality.HeldOutPhrases);
                 writer.WriteStartArray("similarity_matrix");
                 foreach (var v in quality.SimilarityMatrix!) writer.WriteNumberValue(v);
                 writer.WriteEndArray();

@@ -47,6 +47,22 @@ public static partial class ModelQuantizer
         if (sourceCard.IsQuantized)
             throw new InvalidDataException($"{Path.Combine(sourceDir, "model.json")}: this model is already quantised ({sourceCard.Quantization!.Method}); quantise its fp32 source instead.");
 
+        // Stage beside the output (so the final moves stay on one volume) before the long work, so that an output
+        // that cannot be written fails at once; evaluate there; publish only on success.
+        string staging = CreateStaging(outputDir);
+        try
+        {
+            return QuantizeInto(staging, source, sourceDir, sourceCard, modelPath, outputDir, options, cancellationToken);
+        }
+        finally
+        {
+            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+        }
+    }
+
+    private static QuantizationResult QuantizeInto(string staging, OnnxEmbedder source, string sourceDir, ModelCard sourceCard,
+        string modelPath, string outputDir, QuantizationOptions options, CancellationToken cancellationToken)
+    {
         ModelProto model;
         try
         {
@@ -88,12 +104,6 @@ public static partial class ModelQuantizer
             Quantization = info,
         };
 
-        // Stage beside the output so the final moves stay on one volume; evaluate there; publish only on success.
-        string parent = Path.GetDirectoryName(outputDir.TrimEnd(Path.DirectorySeparatorChar)) ?? outputDir;
-        Directory.CreateDirectory(parent);
-        string staging = Path.Combine(parent, "." + Path.GetFileName(outputDir.TrimEnd(Path.DirectorySeparatorChar)) + ".partial-" + Environment.ProcessId);
-        if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
-        Directory.CreateDirectory(staging);
         try
         {
             File.WriteAllBytes(Path.Combine(staging, "model.onnx"), bytes);
@@ -111,10 +121,31 @@ public static partial class ModelQuantizer
                 File.Move(Path.Combine(staging, name), Path.Combine(outputDir, name), overwrite: true);
             return new QuantizationResult(true, outputDir, card, null);
         }
-        finally
+        catch (UnauthorizedAccessException e)
         {
-            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+            throw new IOException($"{outputDir}: cannot write the int8 model there ({e.Message}); choose a writable --output directory.", e);
         }
+    }
+
+    /// <summary>Checks that <paramref name="outputDir"/> can be a directory and creates a fresh staging directory beside it.</summary>
+    private static string CreateStaging(string outputDir)
+    {
+        string trimmed = outputDir.TrimEnd(Path.DirectorySeparatorChar);
+        if (File.Exists(trimmed))
+            throw new IOException($"{outputDir}: is a file; the int8 model is a directory (model.onnx, vocab.txt, model.json). Give a new or existing directory as the output.");
+        string parent = Path.GetDirectoryName(trimmed) ?? outputDir;
+        string staging = Path.Combine(parent, "." + Path.GetFileName(trimmed) + ".partial-" + Environment.ProcessId);
+        try
+        {
+            Directory.CreateDirectory(parent);
+            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+            Directory.CreateDirectory(staging);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new IOException($"{outputDir}: cannot create the output directory there ({e.Message}); choose a writable --output directory.", e);
+        }
+        return staging;
     }
 
     /// <summary>The card as written: indented UTF-8 JSON with a final line feed.</summary>

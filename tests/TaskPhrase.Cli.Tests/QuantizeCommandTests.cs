@@ -93,6 +93,24 @@ public sealed class QuantizeCommandTests(CliFixture cli) : IDisposable
             Assert.Equal(Published[0], v[0].Zip(v[1]).Sum(p => p.First * p.Second), QuantizationGates.MatrixTolerance);
         }
 
+        // `check` shows the recorded gate figures of the model it lints with, in text and JSON.
+        string registry = Path.Combine(AppContext.BaseDirectory, "data", "registries", "valid", "small.yaml");
+        var check = cli.Run("check", "--registry", registry, "--model", first);
+        Assert.True(check.Exit == 0, check.Err);
+        string modelLine = Assert.Single(check.Out.Split('\n'), l => l.StartsWith("model all-minilm-l6-v2-int8: int8", StringComparison.Ordinal));
+        Assert.Contains(min.ToString("0.0000", System.Globalization.CultureInfo.InvariantCulture), modelLine, StringComparison.Ordinal);
+        Assert.Contains(Fp32Sha256, modelLine, StringComparison.Ordinal);
+        Assert.EndsWith(": pass", modelLine.TrimEnd(), StringComparison.Ordinal);
+        var checkJson = cli.Run("check", "--no-lint", "--json", "--registry", registry, "--model", first);
+        Assert.True(checkJson.Exit == 0, checkJson.Err);
+        using (var doc = JsonDocument.Parse(checkJson.Out))
+        {
+            var m = doc.RootElement.GetProperty("model");
+            Assert.Equal("pass", doc.RootElement.GetProperty("model_gates").GetString());
+            Assert.Equal(min, m.GetProperty("quantization").GetProperty("quality").GetProperty("min_cosine").GetDouble());
+            Assert.Equal(Fp32Sha256, m.GetProperty("quantization").GetProperty("source_model_sha256").GetString());
+        }
+
         // Determinism: a second run into another directory writes the very same bytes.
         string second = Path.Combine(_dir, "second");
         var again = cli.Run("quantize", "--output", second);

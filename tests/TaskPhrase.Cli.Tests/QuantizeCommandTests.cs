@@ -184,6 +184,7 @@ public sealed class QuantizeCommandTests(CliFixture cli) : IDisposable
         { "alpha out of range", "quantize --alpha 1.5 --output {dir}/out", 2, "between 0 and 1" },
         { "alpha not a number", "quantize --alpha strong --output {dir}/out", 2, "strong" },
         { "output missing", "quantize", 2, "--output" },
+        { "CLINC150 file missing", "quantize --clinc150 {dir}/none.json --output {dir}/out", 2, "CLINC150 file not found" },
     };
 
     [Theory]

@@ -30,6 +30,7 @@ public static partial class ModelQuantizer
     /// <exception cref="InvalidDataException">The source is unreadable, already quantised, or not a BERT-style encoder; the message names the file.</exception>
     /// <exception cref="ArgumentException">The output directory is the source directory.</exception>
     /// <exception cref="IOException">The output cannot be written.</exception>
+    /// <exception cref="FileNotFoundException"><see cref="QuantizationOptions.Clinc150Path"/> is set but the file is not there.</exception>
     public static QuantizationResult Quantize(string sourceDirectory, string outputDirectory, QuantizationOptions? options = null,
         CancellationToken cancellationToken = default)
     {
@@ -47,12 +48,14 @@ public static partial class ModelQuantizer
         if (sourceCard.IsQuantized)
             throw new InvalidDataException($"{Path.Combine(sourceDir, "model.json")}: this model is already quantised ({sourceCard.Quantization!.Method}); quantise its fp32 source instead.");
 
+        string? clinc = options.Clinc150Path is { } given ? Clinc150Audit.Locate(given) : null;
+
         // Stage beside the output (so the final moves stay on one volume) before the long work, so that an output
         // that cannot be written fails at once; evaluate there; publish only on success.
         string staging = CreateStaging(outputDir);
         try
         {
-            return QuantizeInto(staging, source, sourceDir, sourceCard, modelPath, outputDir, options, cancellationToken);
+            return QuantizeInto(staging, source, sourceDir, sourceCard, modelPath, outputDir, options, clinc, cancellationToken);
         }
         finally
         {
@@ -61,7 +64,7 @@ public static partial class ModelQuantizer
     }
 
     private static QuantizationResult QuantizeInto(string staging, OnnxEmbedder source, string sourceDir, ModelCard sourceCard,
-        string modelPath, string outputDir, QuantizationOptions options, CancellationToken cancellationToken)
+        string modelPath, string outputDir, QuantizationOptions options, string? clinc, CancellationToken cancellationToken)
     {
         ModelProto model;
         try
@@ -110,7 +113,10 @@ public static partial class ModelQuantizer
             File.Copy(Path.Combine(sourceDir, "vocab.txt"), Path.Combine(staging, "vocab.txt"));
             QuantizationQuality quality;
             using (var quantized = OnnxEmbedder.CreateCore(staging, card, options.EmbedderOptions))
+            {
                 quality = Measure(source, quantized, cancellationToken);
+                if (clinc is not null) quality = quality with { Clinc150 = Clinc150Audit.Measure(clinc, source, quantized, cancellationToken) };
+            }
             card = card with { Quantization = info with { Quality = quality } };
             string? failure = QuantizationGates.Check(quality, sourceCard.Id);
             if (failure is not null) return new QuantizationResult(false, outputDir, card, failure);

@@ -36,4 +36,7 @@ public sealed record QuantizationQuality
 
     /// <summary>The same three similarities from the fp32 source model.</summary>
     [JsonPropertyName("source_similarity_matrix")] public IReadOnlyList<double>? SourceSimilarityMatrix { get; init; }
+
+    /// <summary>CLINC150 validation audit of both models at fp32's tuned operating point, when quantised with the dataset; else null.</summary>
+    [JsonPropertyName("clinc150")] public Clinc150Figures? Clinc150 { get; init; }
 }

@@ -11,7 +11,8 @@ namespace TaskPhrase.Tests.Quantization;
 /// out-of-scope queries) resolved by each model; thresholds tuned on the fp32 model's even rows (budgets: wrong task
 /// 10 %, false accept 5 %); both models audited on the odd rows at those same thresholds. The int8 audit figures must
 /// be within 1 point of fp32's. (One out-of-scope query of the 50 in the audit half moves the false-accept rate by
-/// 2 points; a flip there fails the gate.)
+/// 2 points; a flip there fails the gate.) The quantiser runs the same audit when given the dataset
+/// (<c>QuantizationOptions.Clinc150Path</c>, as the fixture does) and records it in the card; both must agree.
 /// </summary>
 [Collection(QuantizedModelCollection.Name)]
 [Trait("tier", "slow")]
@@ -47,6 +48,18 @@ public sealed class QuantizedClincGateTests(QuantizedModelFixture fixture, ITest
         output.WriteLine($"fp32 audit: accuracy {fp32.InScopeAccuracy}, wrong task {fp32.WrongTaskRate}, false accept {fp32.FalseAcceptRate}");
         output.WriteLine($"int8 audit: accuracy {q8.InScopeAccuracy}, wrong task {q8.WrongTaskRate}, false accept {q8.FalseAcceptRate}");
         output.WriteLine($"same top task on {sameTop} of {fp32Scored.Count} validation queries");
+
+        // The quantiser's own CLINC150 figures in the card agree with this independent computation.
+        var recorded = fixture.Result.Quantization.Quality!.Clinc150;
+        Assert.NotNull(recorded);
+        Assert.Equal((tuned.Accept, tuned.Margin), ((float)recorded!.Accept, (float)recorded.Margin));
+        Assert.Equal((fp32.InScope, fp32.OutOfScope), (recorded.InScope, recorded.OutOfScope));
+        Assert.Equal(fp32.InScopeAccuracy.Value, recorded.Fp32!.InScopeAccuracy, 1e-6);
+        Assert.Equal(fp32.WrongTaskRate.Value, recorded.Fp32.WrongTask, 1e-6);
+        Assert.Equal(fp32.FalseAcceptRate.Value, recorded.Fp32.FalseAccept, 1e-6);
+        Assert.Equal(q8.InScopeAccuracy.Value, recorded.Int8!.InScopeAccuracy, 1e-6);
+        Assert.Equal(q8.WrongTaskRate.Value, recorded.Int8.WrongTask, 1e-6);
+        Assert.Equal(q8.FalseAcceptRate.Value, recorded.Int8.FalseAccept, 1e-6);
 
         Assert.True(Math.Abs(q8.InScopeAccuracy.Value - fp32.InScopeAccuracy.Value) <= Points, $"in-scope accuracy int8 {q8.InScopeAccuracy} vs fp32 {fp32.InScopeAccuracy}");
         Assert.True(Math.Abs(q8.WrongTaskRate.Value - fp32.WrongTaskRate.Value) <= Points, $"wrong task int8 {q8.WrongTaskRate} vs fp32 {fp32.WrongTaskRate}");

@@ -64,8 +64,12 @@ internal static class CheckCommand
         var quality = q.Quality!;
         var m = quality.SimilarityMatrix!;
         var s = quality.SourceSimilarityMatrix!;
+        string clinc = quality.Clinc150 is { Fp32: { } f, Int8: { } i } c
+            ? string.Create(CultureInfo.InvariantCulture,
+                $", CLINC150 validation audit at accept {c.Accept:0.000} margin {c.Margin:0.000} int8 / fp32: accuracy {i.InScopeAccuracy:P2} / {f.InScopeAccuracy:P2}, wrong task {i.WrongTask:P2} / {f.WrongTask:P2}, false accept {i.FalseAccept:P2} / {f.FalseAccept:P2} (±{QuantizationGates.Clinc150Points * 100} point)")
+            : ", CLINC150 not measured";
         return string.Create(CultureInfo.InvariantCulture,
-            $"model {card.Id}: int8 ({q.Method}, alpha {q.Alpha}) of {q.SourceModelId} (SHA-256 {q.SourceModelSha256}); gates: held-out min cosine to fp32 {quality.MinCosine:0.0000} (≥ {QuantizationGates.MinCosine}; single {quality.SingleMinCosine:0.0000}, batched {quality.BatchedMinCosine:0.0000}; {quality.HeldOutPhrases} phrases), Quickstart {m[0]:0.0000} / {m[1]:0.0000} / {m[2]:0.0000} against fp32 {s[0]:0.0000} / {s[1]:0.0000} / {s[2]:0.0000} (±{QuantizationGates.MatrixTolerance}): pass");
+            $"model {card.Id}: int8 ({q.Method}, alpha {q.Alpha}) of {q.SourceModelId} (SHA-256 {q.SourceModelSha256}); gates: held-out min cosine to fp32 {quality.MinCosine:0.0000} (≥ {QuantizationGates.MinCosine}; single {quality.SingleMinCosine:0.0000}, batched {quality.BatchedMinCosine:0.0000}; {quality.HeldOutPhrases} phrases), Quickstart {m[0]:0.0000} / {m[1]:0.0000} / {m[2]:0.0000} against fp32 {s[0]:0.0000} / {s[1]:0.0000} / {s[2]:0.0000} (±{QuantizationGates.MatrixTolerance}){clinc}: pass");
     }
 
     private static void WriteHuman(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint, ModelCard? card)

@@ -36,7 +36,10 @@ public sealed class OnnxEmbedderOptions
     /// </summary>
     public bool AllowSpinning { get; set; }
 
-    /// <summary>Texts per forward pass when embedding many (default 32; texts are sorted by length first).</summary>
+    /// <summary>
+    /// Most texts per forward pass when embedding many (default 32; texts are sorted by length first; int8 models
+    /// batch only texts of equal token length, see <see cref="OnnxEmbedder.EmbedMany"/>).
+    /// </summary>
     /// <exception cref="ArgumentOutOfRangeException">Below 1 or above 1024.</exception>
     public int BatchSize
     {

@@ -1,5 +1,8 @@
 using System.CommandLine;
+using System.Globalization;
 using System.Text.Json;
+using TaskPhrase.Onnx;
+using TaskPhrase.Onnx.Quantization;
 using Spectre.Console;
 using TaskPhrase.Registry;
 using TaskPhrase.Resolution;
@@ -34,15 +37,44 @@ internal static class CheckCommand
                 }
             }
             var errors = result.Errors.ToList();
-            if (parse.GetValue(json)) WriteJson(context, path, result, lint);
-            else WriteHuman(context, path, result, lint);
+            var card = LoadCard(parse.GetValue(model));
+            if (parse.GetValue(json)) WriteJson(context, path, result, lint, card);
+            else WriteHuman(context, path, result, lint, card);
             return errors.Count > 0 ? ExitCodes.CheckFailed : ExitCodes.Success;
         }));
         return command;
     }
 
-    private static void WriteHuman(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint)
+    /// <summary>
+    /// The card of the <c>--model</c> directory (or built-in id), or null without <c>--model</c>. Loading checks an int8
+    /// card's quality gates (a failing card is a bad-input error, as when the model is loaded).
+    /// </summary>
+    private static ModelCard? LoadCard(string? model)
     {
+        if (model is null) return null;
+        string dir = !Directory.Exists(model) && BuiltInModels.Ids.Contains(model) ? BuiltInModels.Locate(model) : model;
+        if (!Directory.Exists(dir)) throw new CliException($"Model directory '{dir}' does not exist. Pass a folder with model.onnx, vocab.txt and model.json, or a built-in id ({string.Join(", ", BuiltInModels.Ids)}).");
+        return ModelCard.Load(Path.Combine(dir, "model.json"));
+    }
+
+    /// <summary>One line on the model: for int8 models the recorded gate figures against the fixed gates (a card that fails them does not load).</summary>
+    internal static string DescribeModel(ModelCard card)
+    {
+        if (card.Quantization is not { } q) return $"model {card.Id}: fp32";
+        var quality = q.Quality!;
+        var m = quality.SimilarityMatrix!;
+        var s = quality.SourceSimilarityMatrix!;
+        string clinc = quality.Clinc150 is { Fp32: { } f, Int8: { } i } c
+            ? string.Create(CultureInfo.InvariantCulture,
+                $", CLINC150 validation audit at accept {c.Accept:0.000} margin {c.Margin:0.000} int8 / fp32: accuracy {i.InScopeAccuracy:P2} / {f.InScopeAccuracy:P2}, wrong task {i.WrongTask:P2} / {f.WrongTask:P2}, false accept {i.FalseAccept:P2} / {f.FalseAccept:P2} (±{QuantizationGates.Clinc150Points * 100} point)")
+            : ", CLINC150 not measured";
+        return string.Create(CultureInfo.InvariantCulture,
+            $"model {card.Id}: int8 ({q.Method}, alpha {q.Alpha}) of {q.SourceModelId} (SHA-256 {q.SourceModelSha256}); gates: held-out min cosine to fp32 {quality.MinCosine:0.0000} (≥ {QuantizationGates.MinCosine}; single {quality.SingleMinCosine:0.0000}, batched {quality.BatchedMinCosine:0.0000}; {quality.HeldOutPhrases} phrases), Quickstart {m[0]:0.0000} / {m[1]:0.0000} / {m[2]:0.0000} against fp32 {s[0]:0.0000} / {s[1]:0.0000} / {s[2]:0.0000} (±{QuantizationGates.MatrixTolerance}){clinc}: pass");
+    }
+
+    private static void WriteHuman(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint, ModelCard? card)
+    {
+        if (card is not null) context.Out.WriteLine(DescribeModel(card));
         foreach (var d in result.Diagnostics) context.Out.WriteLine(d.ToString());
         foreach (var w in lint) context.Out.WriteLine($"{path}: {w}");
         var console = context.Console();
@@ -54,11 +86,18 @@ internal static class CheckCommand
             : $"no errors, {result.Warnings.Count() + lint.Count} warning(s)");
     }
 
-    private static void WriteJson(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint)
+    private static void WriteJson(CliContext context, string path, RegistryLoadResult result, IReadOnlyList<LintWarning> lint, ModelCard? card)
     {
         using var writer = new Utf8JsonWriter(CliRunner.StdoutStream(context), new JsonWriterOptions { Indented = true });
         writer.WriteStartObject();
         writer.WriteString("registry_file", path);
+        if (card is not null)
+        {
+            // The card as written (with its quantization section and gate figures); a card failing the gates does not load.
+            writer.WritePropertyName("model");
+            writer.WriteRawValue(JsonSerializer.SerializeToUtf8Bytes(card, CardJson));
+            writer.WriteString("model_gates", card.IsQuantized ? "pass" : "not quantised");
+        }
         writer.WriteBoolean("valid", result.Succeeded);
         if (result.Registry is { } r)
         {
@@ -99,4 +138,9 @@ internal static class CheckCommand
         writer.WriteNumber("column", d.Column);
         writer.WriteEndObject();
     }
+
+    private static readonly JsonSerializerOptions CardJson = new()
+    {
+        DefaultIgnoreCondition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull,
+    };
 }

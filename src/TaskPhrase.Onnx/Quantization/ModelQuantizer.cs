@@ -30,6 +30,7 @@ public static partial class ModelQuantizer
     /// <exception cref="InvalidDataException">The source is unreadable, already quantised, or not a BERT-style encoder; the message names the file.</exception>
     /// <exception cref="ArgumentException">The output directory is the source directory.</exception>
     /// <exception cref="IOException">The output cannot be written.</exception>
+    /// <exception cref="FileNotFoundException"><see cref="QuantizationOptions.Clinc150Path"/> is set but the file is not there.</exception>
     public static QuantizationResult Quantize(string sourceDirectory, string outputDirectory, QuantizationOptions? options = null,
         CancellationToken cancellationToken = default)
     {
@@ -47,6 +48,24 @@ public static partial class ModelQuantizer
         if (sourceCard.IsQuantized)
             throw new InvalidDataException($"{Path.Combine(sourceDir, "model.json")}: this model is already quantised ({sourceCard.Quantization!.Method}); quantise its fp32 source instead.");
 
+        string? clinc = options.Clinc150Path is { } given ? Clinc150Audit.Locate(given) : null;
+
+        // Stage beside the output (so the final moves stay on one volume) before the long work, so that an output
+        // that cannot be written fails at once; evaluate there; publish only on success.
+        string staging = CreateStaging(outputDir);
+        try
+        {
+            return QuantizeInto(staging, source, sourceDir, sourceCard, modelPath, outputDir, options, clinc, cancellationToken);
+        }
+        finally
+        {
+            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+        }
+    }
+
+    private static QuantizationResult QuantizeInto(string staging, OnnxEmbedder source, string sourceDir, ModelCard sourceCard,
+        string modelPath, string outputDir, QuantizationOptions options, string? clinc, CancellationToken cancellationToken)
+    {
         ModelProto model;
         try
         {
@@ -88,19 +107,16 @@ public static partial class ModelQuantizer
             Quantization = info,
         };
 
-        // Stage beside the output so the final moves stay on one volume; evaluate there; publish only on success.
-        string parent = Path.GetDirectoryName(outputDir.TrimEnd(Path.DirectorySeparatorChar)) ?? outputDir;
-        Directory.CreateDirectory(parent);
-        string staging = Path.Combine(parent, "." + Path.GetFileName(outputDir.TrimEnd(Path.DirectorySeparatorChar)) + ".partial-" + Environment.ProcessId);
-        if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
-        Directory.CreateDirectory(staging);
         try
         {
             File.WriteAllBytes(Path.Combine(staging, "model.onnx"), bytes);
             File.Copy(Path.Combine(sourceDir, "vocab.txt"), Path.Combine(staging, "vocab.txt"));
             QuantizationQuality quality;
             using (var quantized = OnnxEmbedder.CreateCore(staging, card, options.EmbedderOptions))
+            {
                 quality = Measure(source, quantized, cancellationToken);
+                if (clinc is not null) quality = quality with { Clinc150 = Clinc150Audit.Measure(clinc, source, quantized, cancellationToken) };
+            }
             card = card with { Quantization = info with { Quality = quality } };
             string? failure = QuantizationGates.Check(quality, sourceCard.Id);
             if (failure is not null) return new QuantizationResult(false, outputDir, card, failure);
@@ -111,10 +127,31 @@ public static partial class ModelQuantizer
                 File.Move(Path.Combine(staging, name), Path.Combine(outputDir, name), overwrite: true);
             return new QuantizationResult(true, outputDir, card, null);
         }
-        finally
+        catch (UnauthorizedAccessException e)
         {
-            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+            throw new IOException($"{outputDir}: cannot write the int8 model there ({e.Message}); choose a writable --output directory.", e);
         }
+    }
+
+    /// <summary>Checks that <paramref name="outputDir"/> can be a directory and creates a fresh staging directory beside it.</summary>
+    private static string CreateStaging(string outputDir)
+    {
+        string trimmed = outputDir.TrimEnd(Path.DirectorySeparatorChar);
+        if (File.Exists(trimmed))
+            throw new IOException($"{outputDir}: is a file; the int8 model is a directory (model.onnx, vocab.txt, model.json). Give a new or existing directory as the output.");
+        string parent = Path.GetDirectoryName(trimmed) ?? outputDir;
+        string staging = Path.Combine(parent, "." + Path.GetFileName(trimmed) + ".partial-" + Environment.ProcessId);
+        try
+        {
+            Directory.CreateDirectory(parent);
+            if (Directory.Exists(staging)) Directory.Delete(staging, recursive: true);
+            Directory.CreateDirectory(staging);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new IOException($"{outputDir}: cannot create the output directory there ({e.Message}); choose a writable --output directory.", e);
+        }
+        return staging;
     }
 
     /// <summary>The card as written: indented UTF-8 JSON with a final line feed.</summary>

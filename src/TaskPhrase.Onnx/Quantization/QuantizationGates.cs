@@ -14,6 +14,9 @@ public static class QuantizationGates
     /// <summary>Largest allowed difference of any Quickstart similarity from the fp32 model's (and, for all-MiniLM-L6-v2, from the published value).</summary>
     public const double MatrixTolerance = 0.01;
 
+    /// <summary>Largest allowed difference of a CLINC150 audit rate (in-scope accuracy, wrong task, false accept) from fp32's: 1 point.</summary>
+    public const double Clinc150Points = 0.01;
+
     /// <summary>
     /// The sentence-transformers Quickstart sentences ("Sentence Transformer" usage example): their similarity
     /// matrix is published for all-MiniLM-L6-v2.
@@ -62,6 +65,14 @@ public static class QuantizationGates
                 return string.Create(CultureInfo.InvariantCulture, $"Quickstart similarity {i + 1} is {m[i]:0.0000} against fp32 {s[i]:0.0000}, more than ±{MatrixTolerance} apart");
             if (sourceModelId == BuiltInModels.MiniLmL6V2 && !(Math.Abs(m[i] - PublishedMiniLmMatrix[i]) <= MatrixTolerance))
                 return string.Create(CultureInfo.InvariantCulture, $"Quickstart similarity {i + 1} is {m[i]:0.0000} against the published {PublishedMiniLmMatrix[i]:0.0000}, more than ±{MatrixTolerance} apart");
+        }
+        if (quality.Clinc150 is { } c)
+        {
+            if (c.Fp32 is not { } f || c.Int8 is not { } q || c.InScope < 1 || c.OutOfScope < 1)
+                return "\"quantization.quality.clinc150\" is incomplete (fp32, int8, in_scope and out_of_scope are needed)";
+            foreach (var (name, a, b) in new[] { ("in-scope accuracy", f.InScopeAccuracy, q.InScopeAccuracy), ("wrong-task rate", f.WrongTask, q.WrongTask), ("false-accept rate", f.FalseAccept, q.FalseAccept) })
+                if (!(Math.Abs(a - b) <= Clinc150Points + 1e-9))
+                    return string.Create(CultureInfo.InvariantCulture, $"the CLINC150 {name} is {b:P2} against fp32 {a:P2}, more than {Clinc150Points * 100} point apart");
         }
         return null;
     }

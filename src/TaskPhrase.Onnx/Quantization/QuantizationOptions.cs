@@ -33,6 +33,13 @@ public sealed class QuantizationOptions
         }
     }
 
+    /// <summary>
+    /// The CLINC150 <c>clinc150_train_val.json</c> (or its folder) for the CLINC150 gate: when set, both models are
+    /// audited on its validation split at fp32's tuned operating point, the figures go into the card and each rate must
+    /// be within <see cref="QuantizationGates.Clinc150Points"/> of fp32's. Null (default): no CLINC150 gate.
+    /// </summary>
+    public string? Clinc150Path { get; init; }
+
     /// <summary>Runtime settings for the sessions that calibrate and evaluate (default: 1 intra-op thread, which also keeps calibration exactly repeatable).</summary>
     public OnnxEmbedderOptions EmbedderOptions { get; init; } = new() { IntraOpThreads = 1, QuantizedIntraOpThreads = 1 };
 }

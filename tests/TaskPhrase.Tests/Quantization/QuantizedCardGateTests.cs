@@ -50,6 +50,32 @@ public sealed class QuantizedCardGateTests(QuantizedModelFixture fixture)
     }
 
     [Fact]
+    public void Create_CardWithClincAccuracyTwoPointsOffFp32_IsRefused()
+    {
+        Assert.NotNull(fixture.Result.Quantization.Quality!.Clinc150);
+        string dir = CopyWithCard("clinc-drift", c =>
+        {
+            var clinc = c["quantization"]!["quality"]!["clinc150"]!;
+            clinc["int8"]!["in_scope_accuracy"] = (double)clinc["fp32"]!["in_scope_accuracy"]! - 0.02;
+        });
+        var ex = Assert.Throws<InvalidDataException>(() => OnnxEmbedder.Create(dir));
+        Assert.Contains("CLINC150 in-scope accuracy", ex.Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Create_CardWithClincWithinOnePoint_Loads()
+    {
+        // 0.005 off fp32 is inside the 1-point gate: the edited card still loads (its model file is unchanged).
+        string dir = CopyWithCard("clinc-close", c =>
+        {
+            var clinc = c["quantization"]!["quality"]!["clinc150"]!;
+            clinc["int8"]!["false_accept"] = (double)clinc["fp32"]!["false_accept"]! + 0.005;
+        });
+        using var embedder = OnnxEmbedder.Create(dir);
+        Assert.Equal("all-minilm-l6-v2-int8", embedder.Model.Id);
+    }
+
+    [Fact]
     public void Create_CardWithoutModelHash_IsRefused()
     {
         string dir = CopyWithCard("no-hash", c => c.Remove("model_sha256"));

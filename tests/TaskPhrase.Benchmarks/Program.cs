@@ -23,6 +23,9 @@ switch (args.FirstOrDefault())
     case "coldstart":
         ColdStart.Run(args.Skip(1));
         return 0;
+    case "search":
+        SearchHarness.Run(args.Skip(1));
+        return 0;
     case "snapshot":
         BehaviourSnapshot.Run(args.Skip(1));
         return 0;

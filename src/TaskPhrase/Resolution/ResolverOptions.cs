@@ -69,5 +69,8 @@ public sealed class ResolverOptions
     /// <summary>Whether to run the unintelligible guard (default true).</summary>
     public bool UnintelligibleGuard { get; set; } = true;
 
+    /// <summary>Whether best-phrase scoring may use the 8-bit phrase screen (exact either way; off only to compare in tests).</summary>
+    internal bool PhraseScreen { get; set; } = true;
+
     internal ResolverOptions Clone() => (ResolverOptions)MemberwiseClone();
 }

@@ -71,6 +71,9 @@ internal sealed record ResolverState
     public Whitening? Whitening { get; init; }
     public TaskHead? Head { get; init; }
 
+    /// <summary>The 8-bit phrase screen (best-phrase scoring over at least <see cref="PhraseScreen.MinRows"/> rows), else null.</summary>
+    public PhraseScreen? Screen { get; init; }
+
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
@@ -147,6 +150,7 @@ internal sealed record ResolverState
             Words = allWords.ToHashSet(StringComparer.Ordinal),
             WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+            Screen = scoring == ScoringStrategy.BestPhrase && phraseCount >= PhraseScreen.MinRows ? PhraseScreen.Build(phrases, dims) : null,
             Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
             Head = scoring != ScoringStrategy.Head ? null
                 : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)

@@ -105,7 +105,7 @@ public sealed partial class TaskResolver
 
     private Resolution Decide(ResolverState state, Prepared prepared, ReadOnlySpan<float> vector, bool embedTruncated, Span<float> scores, Span<int> rows)
     {
-        float? headLookAlike = ScoreTasks(state, vector, scores, rows);
+        float? headLookAlike = ScoreTasks(state, vector, _options.Candidates, scores, rows);
         var candidates = TopCandidates(state, vector, scores, rows, _options.Candidates, out int best);
         var task = state.Registry.Tasks[best];
         float bestScore = scores[best];
@@ -121,7 +121,7 @@ public sealed partial class TaskResolver
         string? negation = NegationCues.Find(words);
         if (negation is not null && state.TaskNegations[best].Contains(negation)) negation = null;
         string? hazard = _options.HazardCheck ? state.Hazards.FindIn(uncovered) ?? state.Hazards.FindPossessiveTarget(words, state.Vocabulary[best]) : null;
-        var (foreignWord, foreignTask) = ForeignAnchor(state, best, uncovered, scores);
+        var (foreignWord, foreignTask) = ForeignAnchor(state, vector, best, uncovered, scores, rows);
         float phraseSim = Dot(state, vector, bestRow);
         (float Sim, int Row) lookAlike = NearestMustReject(state, vector, best);
         bool closerToLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim;
@@ -240,7 +240,8 @@ public sealed partial class TaskResolver
     /// firing on registries whose tasks share vocabulary (measured on CLINC150: without them the rule rejected a
     /// sixth of in-scope queries).
     /// </summary>
-    private static (string? Word, string? Task) ForeignAnchor(ResolverState state, int best, string[] uncovered, ReadOnlySpan<float> scores)
+    /// <remarks>A competitor the phrase screen left unscored (row <see cref="NotScored"/>) is scored exactly here first.</remarks>
+    private static (string? Word, string? Task) ForeignAnchor(ResolverState state, ReadOnlySpan<float> vector, int best, string[] uncovered, Span<float> scores, Span<int> rows)
     {
         foreach (var w in uncovered)
         {
@@ -250,8 +251,11 @@ public sealed partial class TaskResolver
             for (int t = 0; t < state.TaskCount; t++) if (state.Vocabulary[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem)) owners++;
             if (owners > MaxAnchorOwners) continue;
             for (int t = 0; t < state.TaskCount; t++)
-                if (t != best && state.Anchors[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem) && scores[t] >= scores[best] - AnchorCompetitorGap)
-                    return (w, state.Registry.Tasks[t].Id);
+            {
+                if (t == best || !state.Anchors[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem)) continue;
+                if (rows[t] == NotScored) scores[t] = ExactBest(state, vector, t, out rows[t]);
+                if (scores[t] >= scores[best] - AnchorCompetitorGap) return (w, state.Registry.Tasks[t].Id);
+            }
         }
         return (null, null);
     }
@@ -295,7 +299,7 @@ public sealed partial class TaskResolver
         Span<int> rows = taskCount <= MaxStackTasks ? stackalloc int[taskCount] : (pooledRows = ArrayPool<int>.Shared.Rent(taskCount)).AsSpan(0, taskCount);
         try
         {
-            ScoreTasks(state, vector, scores, rows);
+            ScoreTasks(state, vector, count, scores, rows);
             return TopCandidates(state, vector, scores, rows, count, out _);
         }
         finally

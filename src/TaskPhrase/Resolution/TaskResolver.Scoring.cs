@@ -17,8 +17,13 @@ public sealed partial class TaskResolver
     /// registry has tasks; every entry written; <see cref="TopCandidates"/> fills in the rows of the tasks it shows).
     /// </summary>
     /// <returns>The head's look-alike probability when it is at least the best task's (strategy head), else null.</returns>
-    private float? ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, Span<float> scores, Span<int> rows)
+    /// <remarks>
+    /// <paramref name="count"/> is the number of candidates the caller will show: with the phrase screen, only tasks that
+    /// can be among them are scored exactly; the others get an upper bound below those (row <see cref="NotScored"/>).
+    /// </remarks>
+    private float? ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, int count, Span<float> scores, Span<int> rows)
     {
+        if (state.Screen is { } screen && _options.PhraseScreen && Screened(state, screen, vector, count, scores, rows)) return null;
         int dims = state.Dimensions, taskCount = state.TaskCount, rowCount = state.PhraseTask.Length;
         bool topK = state.Scoring == ScoringStrategy.TopK;
         float[]? sims = topK ? ArrayPool<float>.Shared.Rent(Math.Max(1, rowCount)) : null;
@@ -84,13 +89,24 @@ public sealed partial class TaskResolver
         }
     }
 
+    /// <summary>Row mark of a task whose score is only an upper bound from the phrase screen (its row not looked up).</summary>
+    private const int NotScored = -2;
+
     /// <summary>
     /// Task <paramref name="task"/>'s nearest phrase row, exactly as <see cref="ScanPhrases"/> finds it: the first row of
     /// the highest score, row 0 when no score exceeds -∞.
     /// </summary>
     private static int NearestRow(ResolverState state, ReadOnlySpan<float> vector, int task)
     {
-        int dims = state.Dimensions, row = 0;
+        ExactBest(state, vector, task, out int row);
+        return row;
+    }
+
+    /// <summary>Task <paramref name="task"/>'s best phrase score and row, exactly as <see cref="ScanPhrases"/> computes them.</summary>
+    private static float ExactBest(ResolverState state, ReadOnlySpan<float> vector, int task, out int row)
+    {
+        int dims = state.Dimensions;
+        row = 0;
         float best = float.NegativeInfinity;
         var phrases = state.Phrases.AsSpan();
         for (int r = state.TaskRowStart[task]; r < state.TaskRowStart[task + 1]; r++)
@@ -98,7 +114,62 @@ public sealed partial class TaskResolver
             float s = TensorPrimitives.Dot(vector, phrases.Slice(r * dims, dims));
             if (s > best) { best = s; row = r; }
         }
-        return row;
+        return best;
+    }
+
+    /// <summary>
+    /// Best-phrase scoring through the 8-bit screen: bounds every task's best score, then scores exactly (same
+    /// arithmetic as <see cref="ScanPhrases"/>) every task whose upper bound reaches the <paramref name="count"/>-th
+    /// largest lower bound. The <paramref name="count"/> best tasks are among those, so candidates, order and scores
+    /// are exactly those of the full scan. Every other task's exact score is below all of them; it gets the largest
+    /// float not above its upper bound and row <see cref="NotScored"/> (the anchor rule scores it exactly when it
+    /// needs it). False, with nothing written, when the screen cannot bound this query (not finite).
+    /// </summary>
+    private static bool Screened(ResolverState state, PhraseScreen screen, ReadOnlySpan<float> vector, int count, Span<float> scores, Span<int> rows)
+    {
+        int taskCount = state.TaskCount;
+        count = Math.Clamp(count, 1, taskCount);
+        double[] lowerArray = ArrayPool<double>.Shared.Rent(taskCount), upperArray = ArrayPool<double>.Shared.Rent(taskCount);
+        try
+        {
+            var lower = lowerArray.AsSpan(0, taskCount);
+            var upper = upperArray.AsSpan(0, taskCount);
+            if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
+            double threshold = KthLargest(lower, count);
+            if (!double.IsFinite(threshold)) return false;
+            for (int t = 0; t < taskCount; t++)
+            {
+                if (upper[t] >= threshold)
+                {
+                    scores[t] = ExactBest(state, vector, t, out rows[t]);
+                    continue;
+                }
+                float bound = (float)upper[t];
+                scores[t] = bound > upper[t] ? MathF.BitDecrement(bound) : bound;
+                rows[t] = NotScored;
+            }
+            return true;
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(lowerArray);
+            ArrayPool<double>.Shared.Return(upperArray);
+        }
+    }
+
+    /// <summary>The <paramref name="k"/>-th largest value (1-based), in one pass keeping the k largest.</summary>
+    private static double KthLargest(ReadOnlySpan<double> values, int k)
+    {
+        Span<double> top = k <= 256 ? stackalloc double[k] : new double[k];
+        top.Fill(double.NegativeInfinity);
+        foreach (double v in values)
+        {
+            if (!(v > top[^1])) continue;
+            int i = k - 1;
+            while (i > 0 && v > top[i - 1]) { top[i] = top[i - 1]; i--; }
+            top[i] = v;
+        }
+        return top[^1];
     }
 
     /// <summary>Top-k scoring: the mean of each task's <see cref="ResolverOptions.TopK"/> best phrase scores.</summary>

@@ -9,7 +9,7 @@ namespace TaskPhrase.Benchmarks;
 /// <summary>
 /// <c>snapshot</c>: prints every observable field of many resolutions (scores as exact float bits), so a
 /// performance change can be shown to change nothing: run it before and after, and diff the two files.
-/// Covers the Harbor Street probe suites with the real model under all four scoring strategies, through both
+/// Covers the Harbor Street probe suites with the real model under every scoring strategy, through both
 /// <see cref="TaskResolver.Resolve"/> and <see cref="TaskResolver.ResolveMany"/>, and <see cref="TaskResolver.Rank"/>
 /// over synthetic registries of random vectors large enough for the quantised screen (2,000 phrases in 200 tasks,
 /// and 1,000 one-phrase tasks).
@@ -25,7 +25,10 @@ internal static class BehaviourSnapshot
             var utterances = new[] { "probes.csv", "probes-holdout.csv" }
                 .SelectMany(f => ProbeSuite.Load(Path.Combine(BenchmarkPaths.RepoRoot, "examples", "harbor-street", f)).Cases)
                 .Select(c => c.Utterance)
-                .Concat(["", "  \t", "water the basil", "  Water the BASIL. ", "asdf qwer zxcv", "don't water the basil", "throw the kettle at the window"])
+                .Concat(["", "  \t", "water the basil", "  Water the BASIL. ", "asdf qwer zxcv", "don't water the basil", "throw the kettle at the window",
+                    "please watr the bazil", "could you fech my blankit", "put the kettle on my hand", "hit my head with the remote",
+                    "Water The Basil On The Windowsill Please", "water the basil and boil the kettle", "\u201cwater\u201d   the  basil!", "stop the kettle",
+                    "1234 5678", "!!!", "basil basil basil", new string('a', 3000)])
                 .ToList();
             foreach (var strategy in Enum.GetValues<ScoringStrategy>())
             {
@@ -67,7 +70,7 @@ internal static class BehaviourSnapshot
         var sb = new StringBuilder();
         sb.AppendJoin('|', r.Utterance, r.Normalized, r.Outcome, r.Reason, r.Detail, r.Task?.Id, r.Phrase, Bits(r.Score), Bits(r.Margin),
             r.ExactMatch, r.Truncated, string.Join(',', r.UncoveredWords), r.HazardWord, r.Guard, r.NegationCue, r.Conditioning is not null,
-            r.RegistryHash, r.ModelId, r.Confirm);
+            r.RegistryHash, r.ModelId, r.Confirm, string.Join(',', r.Corrections));
         sb.Append(" | ").Append(Describe(r.Candidates));
         return sb.ToString();
     }

@@ -10,7 +10,9 @@ namespace TaskPhrase.Benchmarks;
 /// (runtime start, model load with its SHA-256 check, index load, one resolve, exit), over a 1,000-phrase index built
 /// here with the real model. Needs the CLI built in Release (<c>dotnet build src/TaskPhrase.Cli -c Release</c>);
 /// peak memory comes from <c>/usr/bin/time</c> when it exists. <c>--runs N</c> (default 7); the floor
-/// <c>taskphrase --version</c> (runtime and command-line parsing only) is measured alike.
+/// <c>taskphrase --version</c> (runtime and command-line parsing only) is measured alike. <c>--cli PATH</c> measures
+/// another build of the CLI (for example a ReadyToRun publish: <c>dotnet publish src/TaskPhrase.Cli -c Release -r linux-x64
+/// --self-contained false -p:PublishReadyToRun=true -o DIR</c>, then <c>--cli DIR/TaskPhrase.Cli.dll</c>).
 /// </summary>
 internal static class ColdStart
 {
@@ -18,9 +20,9 @@ internal static class ColdStart
 
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "runs", "rebuild");
+        var a = new HarnessArguments(args, "runs", "rebuild", "cli");
         int runs = Math.Max(1, a.Int("runs", 7));
-        string cli = Path.Combine(BenchmarkPaths.RepoRoot, "src", "TaskPhrase.Cli", "bin", "Release", "net10.0", "TaskPhrase.Cli.dll");
+        string cli = a.Text("cli", Path.Combine(BenchmarkPaths.RepoRoot, "src", "TaskPhrase.Cli", "bin", "Release", "net10.0", "TaskPhrase.Cli.dll"));
         if (!File.Exists(cli)) throw new FileNotFoundException($"{cli} not found; build it first: dotnet build src/TaskPhrase.Cli -c Release.");
         string index = Path.Combine(BenchmarkPaths.Scratch, "coldstart-1000.tpx");
         if (!File.Exists(index) || a.Flag("rebuild"))

@@ -19,6 +19,9 @@ internal sealed class ModelSetup : IDisposable
     /// <summary>An approved phrase of the registry, for the exact-match path.</summary>
     public const string ExactCommand = "water the basil";
 
+    /// <summary>A golden command with a speech-recognition slip, corrected toward the registry's vocabulary before embedding.</summary>
+    public const string SlipCommand = "water the bazil";
+
     public ModelSetup(int intraOpThreads = 2, bool allowSpinning = false, int batchSize = 32)
     {
         Options = new OnnxEmbedderOptions { IntraOpThreads = intraOpThreads, AllowSpinning = allowSpinning, BatchSize = batchSize };

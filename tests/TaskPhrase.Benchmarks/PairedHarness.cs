@@ -63,6 +63,16 @@ internal static class PairedHarness
         Console.WriteLine($"managed allocation per call (this thread, timing included): raw {allocated[0] / rounds} B, embed {allocated[1] / rounds} B, resolve {allocated[2] / rounds} B");
         if (second is not null)
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"own session / embedder's session, ratio of medians {samples[3].Median / raw.Median:0.000}"));
+        Console.WriteLine($"managed allocation per resolve (this thread, 200 calls each): exact match \"{ModelSetup.ExactCommand}\" {AllocatedPerCall(() => setup.Resolver.Resolve(ModelSetup.ExactCommand))} B, " +
+            $"typing slip corrected \"{ModelSetup.SlipCommand}\" {AllocatedPerCall(() => setup.Resolver.Resolve(ModelSetup.SlipCommand))} B");
+    }
+
+    private static long AllocatedPerCall(Action op)
+    {
+        for (int i = 0; i < 20; i++) op();
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        for (int i = 0; i < 200; i++) op();
+        return (GC.GetAllocatedBytesForCurrentThread() - before) / 200;
     }
 
     private static double PerRoundRatio(Samples raw, Samples other)

@@ -28,6 +28,36 @@ internal static class EditDistance
     }
 
     /// <summary>
+    /// <see cref="Between(string, string)"/> for words without surrogate pairs (as <see cref="Text.WordStemmer.Words"/>
+    /// gives them), on three rolling rows of the table kept on the stack: the same distance, without allocating.
+    /// </summary>
+    public static int BetweenWords(ReadOnlySpan<char> a, ReadOnlySpan<char> b)
+    {
+        int width = b.Length + 1;
+        Span<int> table = 3 * width <= 768 ? stackalloc int[3 * width] : new int[3 * width];
+        // Row i of the full table lives at (i % 3) · width; rows i - 1 and i - 2 are the other two.
+        for (int j = 0; j <= b.Length; j++) table[j] = j;
+        for (int i = 1; i <= a.Length; i++)
+        {
+            var row = table.Slice(i % 3 * width, width);
+            var up = table.Slice((i - 1) % 3 * width, width);
+            var upUp = table.Slice((i + 1) % 3 * width, width);
+            row[0] = i;
+            char ai = char.ToLowerInvariant(a[i - 1]);
+            for (int j = 1; j <= b.Length; j++)
+            {
+                char bj = char.ToLowerInvariant(b[j - 1]);
+                int cost = ai == bj ? 0 : 1;
+                int best = Math.Min(Math.Min(up[j] + 1, row[j - 1] + 1), up[j - 1] + cost);
+                if (i > 1 && j > 1 && ai == char.ToLowerInvariant(b[j - 2]) && char.ToLowerInvariant(a[i - 2]) == bj)
+                    best = Math.Min(best, upUp[j - 2] + 1);
+                row[j] = best;
+            }
+        }
+        return table[a.Length % 3 * width + b.Length];
+    }
+
+    /// <summary>
     /// The candidate closest to <paramref name="word"/>, or null when none is close enough to be a likely typo
     /// (distance at most max(2, a third of the word's length)). Ties go to the earlier candidate.
     /// </summary>

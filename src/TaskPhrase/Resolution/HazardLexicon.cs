@@ -80,6 +80,14 @@ public sealed class HazardLexicon
     public string? FindIn(IEnumerable<string> words)
     {
         ArgumentNullException.ThrowIfNull(words);
+        if (words is string[] array)
+        {
+            // The resolver's path: no enumerator, and stems looked up as spans.
+            var stems = _actionStems.GetAlternateLookup<ReadOnlySpan<char>>();
+            foreach (var w in array)
+                if (_targets.Contains(w) || stems.Contains(WordStemmer.StemSpan(w))) return w;
+            return null;
+        }
         foreach (var w in words)
             if (_targets.Contains(w) || _actionStems.Contains(WordStemmer.Stem(w))) return w;
         return null;
@@ -99,6 +107,27 @@ public sealed class HazardLexicon
             if (!covered.Contains(WordStemmer.Stem(words[i]))) return words[i - 1] + " " + words[i];
         }
         return null;
+    }
+
+    /// <summary><see cref="FindPossessiveTarget(IReadOnlyList{string}, IReadOnlySet{string})"/> over word spans; builds a string only for a hit.</summary>
+    internal string? FindPossessiveTarget(in WordSpans words, HashSet<string> covered)
+    {
+        var possessives = Possessives.GetAlternateLookup<ReadOnlySpan<char>>();
+        var stems = covered.GetAlternateLookup<ReadOnlySpan<char>>();
+        for (int i = 1; i < words.Count; i++)
+        {
+            var target = words[i];
+            if (!possessives.Contains(words[i - 1]) || !IsPossessiveTarget(target)) continue;
+            if (!stems.Contains(WordStemmer.StemSpan(target))) return string.Concat(words[i - 1], " ", target);
+        }
+        return null;
+
+        static bool IsPossessiveTarget(ReadOnlySpan<char> word)
+        {
+            for (int k = 0; k < PossessiveTargets.Count; k++)
+                if (word.SequenceEqual(PossessiveTargets[k])) return true;
+            return false;
+        }
     }
 
     private static readonly HashSet<string> Possessives = new(StringComparer.Ordinal) { "my", "your", "her", "his", "their", "someone's", "somebody's", "noor's" };

@@ -83,5 +83,17 @@ public sealed record Resolution
     public required string ModelId { get; init; }
 
     /// <summary>Time taken by the resolve call.</summary>
-    public TimeSpan Elapsed { get; init; }
+    public TimeSpan Elapsed { get => _elapsed; init => _elapsed = value; }
+
+    private TimeSpan _elapsed;
+
+    /// <summary>
+    /// Sets <see cref="Elapsed"/> on a resolution the resolver has just made and not yet handed out, instead of
+    /// copying it with <c>with</c>: one allocation less per resolve. Never call it on a published instance.
+    /// </summary>
+    internal Resolution StampElapsed(TimeSpan elapsed)
+    {
+        _elapsed = elapsed;
+        return this;
+    }
 }

@@ -94,5 +94,8 @@ public sealed class ResolverOptions
 
     private float _secondChanceLift = 0.10f;
 
+    /// <summary>Whether best-phrase scoring may use the 8-bit phrase screen (exact either way; off only to compare in tests).</summary>
+    internal bool PhraseScreen { get; set; } = true;
+
     internal ResolverOptions Clone() => (ResolverOptions)MemberwiseClone();
 }

@@ -27,6 +27,9 @@ internal sealed record ResolverState
     /// <summary>For each phrase row, its position within its task's phrase list.</summary>
     public required int[] PhraseOrdinal { get; init; }
 
+    /// <summary>First phrase row of each task, and the row count at the end (task t's rows are [t], up to [t + 1]).</summary>
+    public required int[] TaskRowStart { get; init; }
+
     /// <summary>Normalised centroid of each task, row-major.</summary>
     public required float[] Centroids { get; init; }
 
@@ -68,6 +71,9 @@ internal sealed record ResolverState
     public Whitening? Whitening { get; init; }
     public TaskHead? Head { get; init; }
 
+    /// <summary>The 8-bit phrase screen (best-phrase scoring over at least <see cref="PhraseScreen.MinRows"/> rows), else null.</summary>
+    public PhraseScreen? Screen { get; init; }
+
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
@@ -85,6 +91,7 @@ internal sealed record ResolverState
         var phraseTask = new int[phraseCount];
         var phraseOrdinal = new int[phraseCount];
         var rejectTask = new int[rejectCount];
+        var taskRowStart = new int[tasks.Count + 1];
         var centroids = new float[tasks.Count * dims];
         var exact = new Dictionary<string, int>(StringComparer.Ordinal);
         var vocab = new HashSet<string>[tasks.Count];
@@ -94,6 +101,7 @@ internal sealed record ResolverState
         for (int t = 0; t < tasks.Count; t++)
         {
             var task = tasks[t];
+            taskRowStart[t] = row;
             var centroid = centroids.AsSpan(t * dims, dims);
             var cues = new HashSet<string>(StringComparer.Ordinal);
             vocab[t] = new HashSet<string>(StringComparer.Ordinal);
@@ -118,6 +126,7 @@ internal sealed record ResolverState
             negations[t] = cues;
             for (int r = 0; r < task.MustReject.Count; r++, rrow++) rejectTask[rrow] = t;
         }
+        taskRowStart[tasks.Count] = row;
         var allWords = tasks.SelectMany(t => t.Phrases.Concat(t.AlsoWords).Append(t.Title)).SelectMany(WordStemmer.Words)
             .Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal).ToArray();
         var settings = registry.Settings;
@@ -130,6 +139,7 @@ internal sealed record ResolverState
             Phrases = phrases.ToArray(),
             PhraseTask = phraseTask,
             PhraseOrdinal = phraseOrdinal,
+            TaskRowStart = taskRowStart,
             Centroids = centroids,
             MustReject = mustReject.ToArray(),
             MustRejectTask = rejectTask,
@@ -140,6 +150,7 @@ internal sealed record ResolverState
             Words = allWords.ToHashSet(StringComparer.Ordinal),
             WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
+            Screen = scoring == ScoringStrategy.BestPhrase && phraseCount >= PhraseScreen.MinRows ? PhraseScreen.Build(phrases, dims) : null,
             Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
             Head = scoring != ScoringStrategy.Head ? null
                 : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)

@@ -28,12 +28,12 @@ internal static class SoundsLikeCorrector
     {
         var byCode = Codes.GetValue(vocabularyList, Group);
         Span<char> code = stackalloc char[4];
-        Dictionary<string, string>? replacements = null;
+        List<(string Word, string Replacement)>? replacements = null;
         List<(string, string)>? swaps = null;
         foreach (var w in WordStemmer.Words(text))
         {
             if (w.Length < MinLength || vocabulary.Contains(w) || StopWords.Contains(w) || NegationCues.Words.Contains(w)
-                || (replacements?.ContainsKey(w) ?? false) || !IsAsciiWord(w) || hazards.FindIn([w]) is not null)
+                || (replacements?.Exists(r => r.Word == w) ?? false) || !IsAsciiWord(w) || hazards.FindIn([w]) is not null)
                 continue;
             if (!Soundex.TryEncode(w, code) || !byCode.TryGetValue(new string(code), out var candidates)) continue;
             int limit = w.Length >= TwoEditLength ? 2 : 1;
@@ -51,7 +51,7 @@ internal static class SoundsLikeCorrector
                 tie = false;
             }
             if (best is null || tie) continue;
-            (replacements ??= new(StringComparer.Ordinal))[w] = best;
+            (replacements ??= []).Add((w, best));
             (swaps ??= []).Add((w, best));
         }
         if (replacements is null) return null;

@@ -6,8 +6,7 @@ namespace TaskPhrase.Resolution;
 /// </summary>
 public static class StopWords
 {
-    /// <summary>The stop list (lower case).</summary>
-    public static IReadOnlySet<string> Words { get; } = new HashSet<string>(StringComparer.Ordinal)
+    private static readonly HashSet<string> WordSet = new(StringComparer.Ordinal)
     {
         "a", "an", "the", "this", "that", "these", "those", "my", "your", "our", "his", "her", "their", "its", "it", "it's",
         "i", "i'd", "i'm", "i'll", "i've", "me", "you", "we", "us", "he", "she", "they", "them", "mine", "yours",
@@ -23,6 +22,14 @@ public static class StopWords
         "done", "dear", "darling", "robot", "arm", "assistant", "thing", "things", "something", "stuff",
     };
 
+    private static readonly HashSet<string>.AlternateLookup<ReadOnlySpan<char>> Lookup = WordSet.GetAlternateLookup<ReadOnlySpan<char>>();
+
+    /// <summary>The stop list (lower case).</summary>
+    public static IReadOnlySet<string> Words => WordSet;
+
     /// <summary>True when <paramref name="word"/> (lower case) is a stop word.</summary>
     public static bool Contains(string word) => Words.Contains(word);
+
+    /// <summary>True when <paramref name="word"/> (lower case) is a stop word.</summary>
+    internal static bool Contains(ReadOnlySpan<char> word) => Lookup.Contains(word);
 }

@@ -1,4 +1,6 @@
+using System.Buffers;
 using System.Numerics.Tensors;
+using TaskPhrase.Conditioning;
 using TaskPhrase.Embedding;
 using TaskPhrase.Registry;
 using TaskPhrase.Text;
@@ -11,6 +13,9 @@ public sealed partial class TaskResolver
     /// <remarks><c>Text</c> is what is embedded and checked (typo corrections applied); <c>Normalized</c> the normalised input.</remarks>
     private readonly record struct Prepared(string Original, string Text, bool Truncated, Resolution? Early, IReadOnlyList<string>? Corrections = null, string? Normalized = null);
 
+    /// <summary>Longest plain-ASCII match key built on the stack; longer input builds it as a string.</summary>
+    private const int MaxStackKey = 512;
+
     private Prepared Prepare(ResolverState state, string utterance)
     {
         string text = TextNormalizer.Normalize(utterance);
@@ -22,13 +27,19 @@ public sealed partial class TaskResolver
             text = text[..cut];
             truncated = true;
         }
-        if (text.Length == 0 || TextNormalizer.MatchKey(text).Length == 0 && !text.Any(char.IsLetterOrDigit))
+        // The match key of plain ASCII text (nearly every typed or transcribed command) is built on the stack; other
+        // text takes the full Unicode route. Either way it is computed once.
+        Span<char> keyBuffer = stackalloc char[MaxStackKey];
+        int keyLength = TextNormalizer.PlainMatchKey(text, keyBuffer);
+        string? fullKey = keyLength < 0 ? TextNormalizer.MatchKey(text) : null;
+        ReadOnlySpan<char> key = fullKey ?? (ReadOnlySpan<char>)keyBuffer[..keyLength];
+        if (text.Length == 0 || key.Length == 0 && !text.Any(char.IsLetterOrDigit))
         {
             var reason = text.Length == 0 ? RejectionReason.Empty : RejectionReason.Unintelligible;
             string detail = text.Length == 0 ? "nothing left after normalisation" : "no letters or digits";
             return new Prepared(utterance, text, truncated, Rejected(state, utterance, text, reason, detail, truncated));
         }
-        if (state.Exact.TryGetValue(TextNormalizer.MatchKey(text), out int row))
+        if (state.Exact.GetAlternateLookup<ReadOnlySpan<char>>().TryGetValue(key, out int row))
         {
             var task = state.Registry.Tasks[state.PhraseTask[row]];
             var phrase = task.Phrases[state.PhraseOrdinal[row]];
@@ -77,23 +88,41 @@ public sealed partial class TaskResolver
     /// <summary>Steps 5–10 of the decision procedure, given the utterance's embedding.</summary>
     private Resolution Decide(ResolverState state, Prepared prepared, ReadOnlySpan<float> vector, bool embedTruncated)
     {
-        var scores = ScoreTasks(state, vector, out var bestRow, out var headLookAlike);
-        var candidates = TopCandidates(state, scores, bestRow, _options.Candidates);
-        int best = IndexOf(state, candidates[0].TaskId);
+        int taskCount = state.TaskCount;
+        float[]? pooledScores = null;
+        int[]? pooledRows = null;
+        Span<float> scores = taskCount <= MaxStackTasks ? stackalloc float[taskCount] : (pooledScores = ArrayPool<float>.Shared.Rent(taskCount)).AsSpan(0, taskCount);
+        Span<int> rows = taskCount <= MaxStackTasks ? stackalloc int[taskCount] : (pooledRows = ArrayPool<int>.Shared.Rent(taskCount)).AsSpan(0, taskCount);
+        try
+        {
+            return Decide(state, prepared, vector, embedTruncated, scores, rows);
+        }
+        finally
+        {
+            ReturnPooled(pooledScores, pooledRows);
+        }
+    }
+
+    private Resolution Decide(ResolverState state, Prepared prepared, ReadOnlySpan<float> vector, bool embedTruncated, Span<float> scores, Span<int> rows)
+    {
+        float? headLookAlike = ScoreTasks(state, vector, _options.Candidates, scores, rows);
+        var candidates = TopCandidates(state, vector, scores, rows, _options.Candidates, out int best);
         var task = state.Registry.Tasks[best];
         float bestScore = scores[best];
-        float? margin = candidates.Count > 1 ? bestScore - candidates[1].Score : null;
+        int bestRow = rows[best];
+        float? margin = candidates.Length > 1 ? bestScore - candidates[1].Score : null;
         float accept = _options.AcceptOverride ?? state.Registry.AcceptFor(task);
         float marginNeeded = _options.MarginOverride ?? state.Registry.MarginFor(task);
 
-        // Guards that do not depend on thresholds, judged against the best task.
-        var words = WordStemmer.Words(prepared.Text);
+        // Guards that do not depend on thresholds, judged against the best task. Words are spans over one pooled
+        // lower-cased copy; strings are made only for uncovered words and for what a guard reports.
+        using var words = new WordSpans(prepared.Text);
         var uncovered = Uncovered(state, best, words);
         string? negation = NegationCues.Find(words);
         if (negation is not null && state.TaskNegations[best].Contains(negation)) negation = null;
         string? hazard = _options.HazardCheck ? state.Hazards.FindIn(uncovered) ?? state.Hazards.FindPossessiveTarget(words, state.Vocabulary[best]) : null;
-        var (foreignWord, foreignTask) = ForeignAnchor(state, best, uncovered, scores);
-        float phraseSim = Dot(state, vector, bestRow[best]);
+        var (foreignWord, foreignTask) = ForeignAnchor(state, vector, best, uncovered, scores, rows);
+        float phraseSim = Dot(state, vector, bestRow);
         (float Sim, int Row) lookAlike = NearestMustReject(state, vector, best);
         bool closerToLookAlike = lookAlike.Row >= 0 && lookAlike.Sim > phraseSim;
         bool isLookAlike = closerToLookAlike || headLookAlike is not null || foreignWord is not null;
@@ -102,11 +131,66 @@ public sealed partial class TaskResolver
             : isLookAlike ? RejectionReason.LookAlike
             : RejectionReason.None;
 
-        var result = new Resolution
+        // The first rule that applies decides; the resolution is then made once, with every field in place.
+        var outcome = ResolutionOutcome.Rejected;
+        RejectionReason reason;
+        string? detail, negationCue = null, hazardWord = null;
+        FilmConditioning? conditioning = null;
+        if (bestScore < accept)
+        {
+            reason = RejectionReason.OutOfScope;
+            detail = $"best score {bestScore:0.000} is below the accept threshold {accept:0.000} of '{task.Id}'";
+        }
+        else if (negation is not null)
+        {
+            reason = RejectionReason.Negated;
+            negationCue = negation;
+            detail = $"negation '{negation}' that the approved phrases of '{task.Id}' do not have";
+        }
+        else if (hazard is not null)
+        {
+            reason = RejectionReason.Hazard;
+            hazardWord = hazard;
+            detail = $"harmful word '{hazard}' is not part of the vocabulary of '{task.Id}'";
+        }
+        else if (foreignWord is not null)
+        {
+            reason = RejectionReason.LookAlike;
+            detail = $"mixes tasks: '{foreignWord}' belongs to '{foreignTask}', not to '{task.Id}'";
+        }
+        else if (headLookAlike is not null && !closerToLookAlike)
+        {
+            reason = RejectionReason.LookAlike;
+            detail = $"the task head gives its look-alike class probability {headLookAlike:0.000}, at least that of '{task.Id}'";
+        }
+        else if (isLookAlike)
+        {
+            var rejectPhrase = task.MustReject[lookAlike.Row - FirstMustRejectRow(state, best)];
+            reason = RejectionReason.LookAlike;
+            detail = $"closer to the look-alike \"{rejectPhrase}\" ({lookAlike.Sim:0.000}) than to \"{candidates[0].Phrase}\" ({phraseSim:0.000})";
+        }
+        else if (margin is { } m && m < marginNeeded)
+        {
+            outcome = ResolutionOutcome.Ambiguous;
+            reason = RejectionReason.Ambiguous;
+            detail = $"'{candidates[0].TaskId}' ({bestScore:0.000}) and '{candidates[1].TaskId}' ({candidates[1].Score:0.000}) are within the margin {marginNeeded:0.000}";
+        }
+        else
+        {
+            outcome = ResolutionOutcome.Accepted;
+            reason = RejectionReason.None;
+            detail = null;
+            // FiLM conditioning always comes from the matched approved phrase, never from the utterance itself.
+            conditioning = state.Film?.Get(bestRow);
+        }
+
+        return new Resolution
         {
             Utterance = prepared.Original,
             Normalized = prepared.Normalized ?? prepared.Text,
-            Outcome = ResolutionOutcome.Rejected,
+            Outcome = outcome,
+            Reason = reason,
+            Detail = detail,
             Task = task,
             Phrase = candidates[0].Phrase,
             Score = bestScore,
@@ -115,54 +199,38 @@ public sealed partial class TaskResolver
             Truncated = prepared.Truncated || embedTruncated,
             UncoveredWords = uncovered,
             Corrections = prepared.Corrections ?? [],
+            HazardWord = hazardWord,
             Guard = guard,
+            NegationCue = negationCue,
+            Conditioning = conditioning,
             RegistryHash = state.Registry.ContentHash,
             ModelId = state.Model.Id,
         };
-
-        if (bestScore < accept)
-            return result with { Reason = RejectionReason.OutOfScope, Detail = $"best score {bestScore:0.000} is below the accept threshold {accept:0.000} of '{task.Id}'" };
-        if (negation is not null)
-            return result with { Reason = RejectionReason.Negated, NegationCue = negation, Detail = $"negation '{negation}' that the approved phrases of '{task.Id}' do not have" };
-        if (hazard is not null)
-            return result with { Reason = RejectionReason.Hazard, HazardWord = hazard, Detail = $"harmful word '{hazard}' is not part of the vocabulary of '{task.Id}'" };
-        if (foreignWord is not null)
-            return result with { Reason = RejectionReason.LookAlike, Detail = $"mixes tasks: '{foreignWord}' belongs to '{foreignTask}', not to '{task.Id}'" };
-        if (headLookAlike is not null && !closerToLookAlike)
-            return result with { Reason = RejectionReason.LookAlike, Detail = $"the task head gives its look-alike class probability {headLookAlike:0.000}, at least that of '{task.Id}'" };
-        if (isLookAlike)
-        {
-            var rejectPhrase = task.MustReject[lookAlike.Row - FirstMustRejectRow(state, best)];
-            return result with { Reason = RejectionReason.LookAlike, Detail = $"closer to the look-alike \"{rejectPhrase}\" ({lookAlike.Sim:0.000}) than to \"{candidates[0].Phrase}\" ({phraseSim:0.000})" };
-        }
-        if (margin is { } m && m < marginNeeded)
-            return result with
-            {
-                Outcome = ResolutionOutcome.Ambiguous,
-                Reason = RejectionReason.Ambiguous,
-                Detail = $"'{candidates[0].TaskId}' ({bestScore:0.000}) and '{candidates[1].TaskId}' ({candidates[1].Score:0.000}) are within the margin {marginNeeded:0.000}",
-            };
-        // FiLM conditioning always comes from the matched approved phrase, never from the utterance itself.
-        return result with { Outcome = ResolutionOutcome.Accepted, Reason = RejectionReason.None, Detail = null, Conditioning = state.Film?.Get(bestRow[best]) };
     }
 
-    private static int IndexOf(ResolverState state, string taskId)
+    /// <summary>The words not covered by the task's vocabulary (stop words, negation cues and numbers aside), as strings.</summary>
+    private static string[] Uncovered(ResolverState state, int task, in WordSpans words)
     {
-        var tasks = state.Registry.Tasks;
-        for (int i = 0; i < tasks.Count; i++) if (tasks[i].Id == taskId) return i;
-        return -1;
-    }
-
-    private static string[] Uncovered(ResolverState state, int task, IReadOnlyList<string> words)
-    {
-        var vocab = state.Vocabulary[task];
-        var result = new List<string>();
-        foreach (var w in words)
+        var vocab = state.Vocabulary[task].GetAlternateLookup<ReadOnlySpan<char>>();
+        Span<int> kept = words.Count <= 128 ? stackalloc int[words.Count] : new int[words.Count];
+        int count = 0;
+        for (int i = 0; i < words.Count; i++)
         {
-            if (StopWords.Contains(w) || NegationCues.Words.Contains(w) || w.All(char.IsDigit)) continue;
-            if (!vocab.Contains(WordStemmer.Stem(w))) result.Add(w);
+            var w = words[i];
+            if (StopWords.Contains(w) || NegationCues.IsWord(w) || IsDigits(w)) continue;
+            if (!vocab.Contains(WordStemmer.StemSpan(w))) kept[count++] = i;
         }
-        return result.ToArray();
+        if (count == 0) return [];
+        var result = new string[count];
+        for (int k = 0; k < count; k++) result[k] = new string(words[kept[k]]);
+        return result;
+
+        static bool IsDigits(ReadOnlySpan<char> word)
+        {
+            foreach (char c in word)
+                if (!char.IsDigit(c)) return false;
+            return true;
+        }
     }
 
     /// <summary>
@@ -172,17 +240,22 @@ public sealed partial class TaskResolver
     /// firing on registries whose tasks share vocabulary (measured on CLINC150: without them the rule rejected a
     /// sixth of in-scope queries).
     /// </summary>
-    private static (string? Word, string? Task) ForeignAnchor(ResolverState state, int best, string[] uncovered, float[] scores)
+    /// <remarks>A competitor the phrase screen left unscored (row <see cref="NotScored"/>) is scored exactly here first.</remarks>
+    private static (string? Word, string? Task) ForeignAnchor(ResolverState state, ReadOnlySpan<float> vector, int best, string[] uncovered, Span<float> scores, Span<int> rows)
     {
         foreach (var w in uncovered)
         {
-            string stem = WordStemmer.Stem(w);
+            // The stem span stays valid through both loops: nothing in them stems.
+            var stem = WordStemmer.StemSpan(w);
             int owners = 0;
-            for (int t = 0; t < state.TaskCount; t++) if (state.Vocabulary[t].Contains(stem)) owners++;
+            for (int t = 0; t < state.TaskCount; t++) if (state.Vocabulary[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem)) owners++;
             if (owners > MaxAnchorOwners) continue;
             for (int t = 0; t < state.TaskCount; t++)
-                if (t != best && state.Anchors[t].Contains(stem) && scores[t] >= scores[best] - AnchorCompetitorGap)
-                    return (w, state.Registry.Tasks[t].Id);
+            {
+                if (t == best || !state.Anchors[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem)) continue;
+                if (rows[t] == NotScored) scores[t] = ExactBest(state, vector, t, out rows[t]);
+                if (scores[t] >= scores[best] - AnchorCompetitorGap) return (w, state.Registry.Tasks[t].Id);
+            }
         }
         return (null, null);
     }
@@ -216,81 +289,22 @@ public sealed partial class TaskResolver
         return (best, bestRow);
     }
 
-    /// <summary>Scores every task; <paramref name="bestRow"/> receives each task's nearest phrase row.</summary>
-    private float[] ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, out int[] bestRow)
-        => ScoreTasks(state, vector, out bestRow, out _);
-
-    /// <summary>
-    /// Scores every task; <paramref name="bestRow"/> receives each task's nearest phrase row, and
-    /// <paramref name="headLookAlike"/> the head's look-alike probability when it is at least the best task's (else null).
-    /// </summary>
-    private float[] ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, out int[] bestRow, out float? headLookAlike)
+    /// <summary>Scores every task and returns the top <paramref name="count"/> candidates (see <see cref="Rank"/>).</summary>
+    private IReadOnlyList<TaskCandidate> RankCandidates(ResolverState state, ReadOnlySpan<float> vector, int count)
     {
-        headLookAlike = null;
-        int dims = state.Dimensions, taskCount = state.TaskCount;
-        var best = new float[taskCount];
-        bestRow = new int[taskCount];
-        Array.Fill(best, float.NegativeInfinity);
-        int rows = state.PhraseTask.Length;
-        var sims = new float[rows];
-        var phrases = state.Phrases.AsSpan();
-        for (int r = 0; r < rows; r++)
+        int taskCount = state.TaskCount;
+        float[]? pooledScores = null;
+        int[]? pooledRows = null;
+        Span<float> scores = taskCount <= MaxStackTasks ? stackalloc float[taskCount] : (pooledScores = ArrayPool<float>.Shared.Rent(taskCount)).AsSpan(0, taskCount);
+        Span<int> rows = taskCount <= MaxStackTasks ? stackalloc int[taskCount] : (pooledRows = ArrayPool<int>.Shared.Rent(taskCount)).AsSpan(0, taskCount);
+        try
         {
-            float s = TensorPrimitives.Dot(vector, phrases.Slice(r * dims, dims));
-            sims[r] = s;
-            int t = state.PhraseTask[r];
-            if (s > best[t]) { best[t] = s; bestRow[t] = r; }
+            ScoreTasks(state, vector, count, scores, rows);
+            return TopCandidates(state, vector, scores, rows, count, out _);
         }
-        switch (state.Scoring)
+        finally
         {
-            case ScoringStrategy.BestPhrase:
-                return best;
-            case ScoringStrategy.Centroid:
-            case ScoringStrategy.Blend:
-                var scores = new float[taskCount];
-                for (int t = 0; t < taskCount; t++)
-                {
-                    float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(t * dims, dims));
-                    scores[t] = state.Scoring == ScoringStrategy.Centroid ? c : 0.5f * (c + best[t]);
-                }
-                return scores;
-            case ScoringStrategy.TopK:
-                var topk = new float[taskCount];
-                int start = 0;
-                for (int t = 0; t < taskCount; t++)
-                {
-                    int end = start;
-                    while (end < rows && state.PhraseTask[end] == t) end++;
-                    var slice = sims.AsSpan(start, end - start).ToArray();
-                    Array.Sort(slice);
-                    int k = Math.Min(_options.TopK, slice.Length);
-                    topk[t] = k == 0 ? float.NegativeInfinity : TensorPrimitives.Sum(slice.AsSpan(slice.Length - k)) / k;
-                    start = end;
-                }
-                return topk;
-            case ScoringStrategy.Whitened:
-                var whitened = new float[taskCount];
-                state.Whitening!.ScoreTasks(vector, whitened);
-                return whitened;
-            case ScoringStrategy.Head:
-                var head = new float[taskCount];
-                float reject = state.Head!.ScoreTasks(vector, head, out float bestProbability);
-                if (state.Head.HasRejectClass && reject >= bestProbability) headLookAlike = reject;
-                return head;
-            default:
-                throw new InvalidOperationException($"Unknown scoring strategy {state.Scoring}.");
+            ReturnPooled(pooledScores, pooledRows);
         }
-    }
-
-    private static IReadOnlyList<TaskCandidate> TopCandidates(ResolverState state, float[] scores, int[] bestRow, int count)
-    {
-        var order = Enumerable.Range(0, scores.Length).OrderByDescending(t => scores[t]).ThenBy(t => t).Take(count);
-        var list = new List<TaskCandidate>();
-        foreach (int t in order)
-        {
-            var task = state.Registry.Tasks[t];
-            list.Add(new TaskCandidate(task.Id, task.Phrases[state.PhraseOrdinal[bestRow[t]]], scores[t]));
-        }
-        return list;
     }
 }

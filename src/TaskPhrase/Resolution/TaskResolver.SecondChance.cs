@@ -70,7 +70,7 @@ public sealed partial class TaskResolver
         if (second.Outcome != ResolutionOutcome.Accepted || second.Task is not { } task) return original;
         float accept = _options.AcceptOverride ?? state.Registry.AcceptFor(task);
         if (second.Score < accept + _options.SecondChanceLift) return original;
-        var vocabulary = state.Vocabulary[IndexOf(state, task.Id)];
+        var vocabulary = state.Vocabulary[TaskPosition(state, task)];
         foreach (var (_, to) in retry.Swaps)
             if (!vocabulary.Contains(WordStemmer.Stem(to))) return original;
 
@@ -124,5 +124,12 @@ public sealed partial class TaskResolver
             var (i, retry) = retries[k];
             results[i] = KeepIfClear(state, prepared[i], results[i], retry, second[k]);
         }
+    }
+
+    private static int TaskPosition(ResolverState state, Registry.TaskDefinition task)
+    {
+        var tasks = state.Registry.Tasks;
+        for (int i = 0; i < tasks.Count; i++) if (ReferenceEquals(tasks[i], task) || tasks[i].Id == task.Id) return i;
+        throw new InvalidOperationException($"Task '{task.Id}' is not in the resolver's registry.");
     }
 }

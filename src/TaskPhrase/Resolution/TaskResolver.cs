@@ -205,13 +205,13 @@ public sealed partial class TaskResolver
         var state = Volatile.Read(ref _state);
         long start = Stopwatch.GetTimestamp();
         var prepared = Prepare(state, utterance);
-        if (prepared.Early is { } early) return early with { Elapsed = Stopwatch.GetElapsedTime(start) };
-        var vector = new float[state.Dimensions];
+        if (prepared.Early is { } early) return early.StampElapsed(Stopwatch.GetElapsedTime(start));
+        Span<float> vector = state.Dimensions <= MaxStackDimensions ? stackalloc float[state.Dimensions] : new float[state.Dimensions];
         bool truncated = EmbedOne(prepared.Text, vector);
         var result = Decide(state, prepared, vector, truncated);
         if (ProposeRetry(state, prepared, result) is { } retry)
             result = KeepIfClear(state, prepared, result, retry, ResolveRetry(state, retry));
-        return result with { Elapsed = Stopwatch.GetElapsedTime(start) };
+        return result.StampElapsed(Stopwatch.GetElapsedTime(start));
     }
 
     /// <summary>Resolves one utterance; the embedding call is awaited (useful with remote generators).</summary>
@@ -254,7 +254,7 @@ public sealed partial class TaskResolver
             await RetrySoundAlikesAsync(state, prepared, results, toEmbed, cancellationToken).ConfigureAwait(false);
         }
         var elapsed = Stopwatch.GetElapsedTime(start) / Math.Max(1, utterances.Count);
-        for (int i = 0; i < results.Length; i++) results[i] = results[i] with { Elapsed = elapsed };
+        for (int i = 0; i < results.Length; i++) results[i].StampElapsed(elapsed);
         return results;
     }
 
@@ -267,10 +267,9 @@ public sealed partial class TaskResolver
         ArgumentNullException.ThrowIfNull(utterance);
         ArgumentOutOfRangeException.ThrowIfLessThan(count, 1);
         var state = Volatile.Read(ref _state);
-        var vector = new float[state.Dimensions];
+        Span<float> vector = state.Dimensions <= MaxStackDimensions ? stackalloc float[state.Dimensions] : new float[state.Dimensions];
         EmbedOne(Text.TextNormalizer.Normalize(utterance), vector);
-        var scores = ScoreTasks(state, vector, out var bestRow);
-        return TopCandidates(state, scores, bestRow, count);
+        return RankCandidates(state, vector, count);
     }
 
     private bool EmbedOne(string text, Span<float> destination)

@@ -15,9 +15,8 @@ public static class UnintelligibleGuard
     {
         ArgumentNullException.ThrowIfNull(text);
         if (CheckLetters(text) is { } why) return why;
-        var words = Text.WordStemmer.Words(text);
-        if (words.Count >= 2 && words.Distinct(StringComparer.Ordinal).Count() == 1)
-            return $"one word repeated {words.Count} times";
+        if (RepeatedWord(text) is int repeats and >= 2)
+            return $"one word repeated {repeats} times";
         if (stats.Pieces > 0 && stats.UnknownPieces * 2 >= stats.Pieces)
             return $"{stats.UnknownPieces} of {stats.Pieces} word pieces are unknown to the model";
         if (stats.AlphabeticWords == 0)
@@ -29,6 +28,17 @@ public static class UnintelligibleGuard
         if (stats.AlphabeticWords >= 3 && stats.FragmentedWords * 3 >= stats.AlphabeticWords * 2 && stats.WholeWords <= 1)
             return $"{stats.FragmentedWords} of {stats.AlphabeticWords} words break into fragments";
         return null;
+    }
+
+    /// <summary>The number of words when the text is one word repeated (or a single word), else null; no per-word strings.</summary>
+    private static int? RepeatedWord(string text)
+    {
+        using var words = new Text.WordSpans(text);
+        if (words.Count == 0) return null;
+        var first = words[0];
+        for (int i = 1; i < words.Count; i++)
+            if (!words[i].SequenceEqual(first)) return null;
+        return words.Count;
     }
 
     /// <summary>A model-free check: too few letters for a command.</summary>

@@ -17,7 +17,13 @@ public static class TextNormalizer
     public static string Normalize(string text)
     {
         ArgumentNullException.ThrowIfNull(text);
-        if (text.Length == 0) return text;
+        if (text.Length == 0 || IsPlainAscii(text)) return text;
+        return NormalizeUnicode(text);
+    }
+
+    /// <summary><see cref="Normalize"/> without the plain-ASCII shortcut (the full Unicode route; tests compare the two).</summary>
+    internal static string NormalizeUnicode(string text)
+    {
         string result = NormalizeOnce(text);
         // Filtering can expose a new NFKC composition (a combining mark after a removed format char);
         // repeating until stable keeps the function idempotent. Converges in one or two rounds.
@@ -30,11 +36,48 @@ public static class TextNormalizer
         return result;
     }
 
+    /// <summary>
+    /// True when <paramref name="text"/> is already its own normal form for a reason that is cheap to check: only
+    /// printable ASCII (U+0021–U+007E, unchanged by NFKC and none of them control or format characters) and single
+    /// spaces between them. Typed and transcribed commands nearly always are; they skip the Unicode work and keep
+    /// their string instance.
+    /// </summary>
+    internal static bool IsPlainAscii(ReadOnlySpan<char> text)
+    {
+        if (text.IsEmpty || text[0] == ' ' || text[^1] == ' ') return false;
+        char previous = 'x';
+        foreach (char c in text)
+        {
+            if (c == ' ' ? previous == ' ' : c is < '\u0021' or > '\u007E') return false;
+            previous = c;
+        }
+        return true;
+    }
+
+    /// <summary>
+    /// <see cref="MatchKey"/> of a plain-ASCII text (see <see cref="IsPlainAscii"/>) written into
+    /// <paramref name="destination"/> without allocating: such a text is its own normal form, and so is its invariant
+    /// lower case, so the key is the lower-cased text with edge punctuation, symbols and spaces removed.
+    /// </summary>
+    /// <returns>The key's length, or -1 when the text is not plain ASCII or does not fit.</returns>
+    internal static int PlainMatchKey(ReadOnlySpan<char> text, Span<char> destination)
+    {
+        if (text.Length > destination.Length || !IsPlainAscii(text)) return -1;
+        int start = 0, end = text.Length;
+        while (start < end && IsEdge(text[start])) start++;
+        while (end > start && IsEdge(text[end - 1])) end--;
+        for (int i = start; i < end; i++) destination[i - start] = char.ToLowerInvariant(text[i]);
+        return end - start;
+    }
+
+    private static bool IsEdge(char c) => char.IsPunctuation(c) || char.IsSymbol(c) || c == ' ';
+
     private static string NormalizeOnce(string text)
     {
         string safe = ReplaceUnnormalizable(text);
         string nfkc = safe.IsNormalized(NormalizationForm.FormKC) ? safe : safe.Normalize(NormalizationForm.FormKC);
         var sb = new StringBuilder(nfkc.Length);
+        Span<char> units = stackalloc char[2];
         bool pendingSpace = false;
         foreach (var rune in nfkc.EnumerateRunes())
         {
@@ -51,7 +94,7 @@ public static class TextNormalizer
                 continue;
             }
             if (pendingSpace) { sb.Append(' '); pendingSpace = false; }
-            sb.Append(rune.ToString());
+            sb.Append(units[..rune.EncodeToUtf16(units)]);
         }
         return sb.ToString();
     }
@@ -70,8 +113,6 @@ public static class TextNormalizer
         while (start < end && IsEdge(n[start])) start++;
         while (end > start && IsEdge(n[end - 1])) end--;
         return n[start..end];
-
-        static bool IsEdge(char c) => char.IsPunctuation(c) || char.IsSymbol(c) || c == ' ';
     }
 
     /// <summary>

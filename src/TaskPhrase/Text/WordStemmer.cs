@@ -9,6 +9,7 @@ namespace TaskPhrase.Text;
 public static class WordStemmer
 {
     [ThreadStatic] private static EnglishStemmer? _stemmer;
+    [ThreadStatic] private static char[]? _stemBuffer;
 
     /// <summary>The Snowball English stem of one lower-case word.</summary>
     /// <exception cref="ArgumentNullException"><paramref name="word"/> is null.</exception>
@@ -19,6 +20,20 @@ public static class WordStemmer
         stemmer.SetCurrent(word);
         stemmer.Stem();
         return stemmer.Current;
+    }
+
+    /// <summary>
+    /// <see cref="Stem"/> without allocating: the stem is left in this thread's stemmer, and the span is valid until the
+    /// next stemming call on the same thread.
+    /// </summary>
+    internal static ReadOnlySpan<char> StemSpan(ReadOnlySpan<char> word)
+    {
+        var stemmer = _stemmer ??= new EnglishStemmer();
+        var buffer = _stemBuffer is { } b && b.Length >= word.Length ? b : _stemBuffer = new char[Math.Max(32, word.Length * 2)];
+        word.CopyTo(buffer);
+        stemmer.SetCurrent(buffer, word.Length);
+        stemmer.Stem();
+        return stemmer.CurrentBuffer.AsSpan(0, stemmer.CurrentBufferLength);
     }
 
     /// <summary>

@@ -14,7 +14,40 @@ public class EditDistanceTests
     [InlineData("", "abc", 3)]
     [InlineData("Phrases", "phrases", 0)]
     public void Between_KnownPairs_GivesPublishedDistance(string a, string b, int expected)
-        => Assert.Equal(expected, EditDistance.Between(a, b));
+    {
+        Assert.Equal(expected, EditDistance.Between(a, b));
+        Assert.Equal(expected, EditDistance.BetweenWords(a, b));
+    }
+
+    /// <summary>
+    /// The allocation-free form against the table form (differential testing, common practice) on random short words
+    /// over a small alphabet (many transpositions and repeats) with upper-case and accented letters, and on word pairs
+    /// of the CLINC150 validation split (Larson et al., 2019), long ones included (past the stack table).
+    /// </summary>
+    [Fact]
+    public void BetweenWords_RandomAndCorpusWords_EqualsBetween()
+    {
+        var random = new Random(3);
+        const string alphabet = "abcAB\u00E9\u00C9'";
+        for (int trial = 0; trial < 20_000; trial++)
+        {
+            string a = Word(random.Next(0, 9)), b = Word(random.Next(0, 9));
+            Assert.Equal(EditDistance.Between(a, b), EditDistance.BetweenWords(a, b));
+        }
+        var words = Clinc150.Split("val").SelectMany(r => TaskPhrase.Text.WordStemmer.Words(r.Text)).Distinct().Take(300).ToArray();
+        for (int i = 0; i + 1 < words.Length; i++)
+            Assert.Equal(EditDistance.Between(words[i], words[i + 1]), EditDistance.BetweenWords(words[i], words[i + 1]));
+        string longA = string.Concat(words.Take(60)), longB = string.Concat(words.Skip(1).Take(60));
+        Assert.True(longB.Length > 256);
+        Assert.Equal(EditDistance.Between(longA, longB), EditDistance.BetweenWords(longA, longB));
+
+        string Word(int length)
+        {
+            var chars = new char[length];
+            for (int k = 0; k < length; k++) chars[k] = alphabet[random.Next(alphabet.Length)];
+            return new string(chars);
+        }
+    }
 
     [Theory]
     [InlineData("phrase", "phrases")]

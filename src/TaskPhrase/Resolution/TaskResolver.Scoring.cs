@@ -1,0 +1,252 @@
+using System.Buffers;
+using System.Numerics.Tensors;
+
+namespace TaskPhrase.Resolution;
+
+public sealed partial class TaskResolver
+{
+    /// <summary>Widest embedding kept on the stack during a resolve; wider ones go to the heap.</summary>
+    private const int MaxStackDimensions = 2048;
+
+    /// <summary>Most tasks whose scores and nearest rows are kept on the stack; more are pooled.</summary>
+    private const int MaxStackTasks = 256;
+
+    /// <summary>
+    /// Step 5: scores every task under the state's strategy into <paramref name="scores"/> and each task's nearest
+    /// approved phrase row into <paramref name="rows"/>, or -1 where the strategy did not need it (both as long as the
+    /// registry has tasks; every entry written; <see cref="TopCandidates"/> fills in the rows of the tasks it shows).
+    /// </summary>
+    /// <returns>The head's look-alike probability when it is at least the best task's (strategy head), else null.</returns>
+    /// <remarks>
+    /// <paramref name="count"/> is the number of candidates the caller will show: with the phrase screen, only tasks that
+    /// can be among them are scored exactly; the others get an upper bound below those (row <see cref="NotScored"/>).
+    /// </remarks>
+    private float? ScoreTasks(ResolverState state, ReadOnlySpan<float> vector, int count, Span<float> scores, Span<int> rows)
+    {
+        if (state.Screen is { } screen && _options.PhraseScreen && Screened(state, screen, vector, count, scores, rows)) return null;
+        int dims = state.Dimensions, taskCount = state.TaskCount, rowCount = state.PhraseTask.Length;
+        bool topK = state.Scoring == ScoringStrategy.TopK;
+        float[]? sims = topK ? ArrayPool<float>.Shared.Rent(Math.Max(1, rowCount)) : null;
+        try
+        {
+            // Centroid, whitened and head scores need no phrase scores: their nearest phrases (shown in the
+            // candidates, compared with the look-alikes, the source of FiLM conditioning) are found afterwards for
+            // the few tasks shown, by the same scan restricted to the task's rows (see NearestRow).
+            if (state.Scoring is ScoringStrategy.Centroid or ScoringStrategy.Whitened or ScoringStrategy.Head)
+                rows.Fill(-1);
+            else
+                ScanPhrases(state, vector, scores, rows, sims);
+            switch (state.Scoring)
+            {
+                case ScoringStrategy.BestPhrase:
+                    return null;
+                case ScoringStrategy.Centroid:
+                    for (int t = 0; t < taskCount; t++) scores[t] = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(t * dims, dims));
+                    return null;
+                case ScoringStrategy.Blend:
+                    for (int t = 0; t < taskCount; t++)
+                    {
+                        float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(t * dims, dims));
+                        scores[t] = 0.5f * (c + scores[t]);
+                    }
+                    return null;
+                case ScoringStrategy.TopK:
+                    ScoreTopK(state, sims!.AsSpan(0, rowCount), scores);
+                    return null;
+                case ScoringStrategy.Whitened:
+                    state.Whitening!.ScoreTasks(vector, scores);
+                    return null;
+                case ScoringStrategy.Head:
+                    float reject = state.Head!.ScoreTasks(vector, scores, out float bestProbability);
+                    return state.Head.HasRejectClass && reject >= bestProbability ? reject : null;
+                default:
+                    throw new InvalidOperationException($"Unknown scoring strategy {state.Scoring}.");
+            }
+        }
+        finally
+        {
+            if (sims is not null) ArrayPool<float>.Shared.Return(sims);
+        }
+    }
+
+    /// <summary>
+    /// Each task's best phrase score into <paramref name="scores"/> and its row into <paramref name="rows"/> (the first
+    /// row of the highest score); every phrase score into <paramref name="sims"/> when given.
+    /// </summary>
+    private static void ScanPhrases(ResolverState state, ReadOnlySpan<float> vector, Span<float> scores, Span<int> rows, float[]? sims)
+    {
+        int dims = state.Dimensions, rowCount = state.PhraseTask.Length;
+        scores.Fill(float.NegativeInfinity);
+        rows.Clear();
+        var phrases = state.Phrases.AsSpan();
+        var phraseTask = state.PhraseTask;
+        for (int r = 0; r < rowCount; r++)
+        {
+            float s = TensorPrimitives.Dot(vector, phrases.Slice(r * dims, dims));
+            if (sims is not null) sims[r] = s;
+            int t = phraseTask[r];
+            if (s > scores[t]) { scores[t] = s; rows[t] = r; }
+        }
+    }
+
+    /// <summary>Row mark of a task whose score is only an upper bound from the phrase screen (its row not looked up).</summary>
+    private const int NotScored = -2;
+
+    /// <summary>
+    /// Task <paramref name="task"/>'s nearest phrase row, exactly as <see cref="ScanPhrases"/> finds it: the first row of
+    /// the highest score, row 0 when no score exceeds -∞.
+    /// </summary>
+    private static int NearestRow(ResolverState state, ReadOnlySpan<float> vector, int task)
+    {
+        ExactBest(state, vector, task, out int row);
+        return row;
+    }
+
+    /// <summary>Task <paramref name="task"/>'s best phrase score and row, exactly as <see cref="ScanPhrases"/> computes them.</summary>
+    private static float ExactBest(ResolverState state, ReadOnlySpan<float> vector, int task, out int row)
+    {
+        int dims = state.Dimensions;
+        row = 0;
+        float best = float.NegativeInfinity;
+        var phrases = state.Phrases.AsSpan();
+        for (int r = state.TaskRowStart[task]; r < state.TaskRowStart[task + 1]; r++)
+        {
+            float s = TensorPrimitives.Dot(vector, phrases.Slice(r * dims, dims));
+            if (s > best) { best = s; row = r; }
+        }
+        return best;
+    }
+
+    /// <summary>
+    /// Best-phrase scoring through the 8-bit screen: bounds every task's best score, then scores exactly (same
+    /// arithmetic as <see cref="ScanPhrases"/>) every task whose upper bound reaches the <paramref name="count"/>-th
+    /// largest lower bound. The <paramref name="count"/> best tasks are among those, so candidates, order and scores
+    /// are exactly those of the full scan. Every other task's exact score is below all of them; it gets the largest
+    /// float not above its upper bound and row <see cref="NotScored"/> (the anchor rule scores it exactly when it
+    /// needs it). False, with nothing written, when the screen cannot bound this query (not finite).
+    /// </summary>
+    private static bool Screened(ResolverState state, PhraseScreen screen, ReadOnlySpan<float> vector, int count, Span<float> scores, Span<int> rows)
+    {
+        int taskCount = state.TaskCount;
+        count = Math.Clamp(count, 1, taskCount);
+        double[] lowerArray = ArrayPool<double>.Shared.Rent(taskCount), upperArray = ArrayPool<double>.Shared.Rent(taskCount);
+        try
+        {
+            var lower = lowerArray.AsSpan(0, taskCount);
+            var upper = upperArray.AsSpan(0, taskCount);
+            if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
+            double threshold = KthLargest(lower, count);
+            if (!double.IsFinite(threshold)) return false;
+            for (int t = 0; t < taskCount; t++)
+            {
+                if (upper[t] >= threshold)
+                {
+                    scores[t] = ExactBest(state, vector, t, out rows[t]);
+                    continue;
+                }
+                float bound = (float)upper[t];
+                scores[t] = bound > upper[t] ? MathF.BitDecrement(bound) : bound;
+                rows[t] = NotScored;
+            }
+            return true;
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(lowerArray);
+            ArrayPool<double>.Shared.Return(upperArray);
+        }
+    }
+
+    /// <summary>The <paramref name="k"/>-th largest value (1-based), in one pass keeping the k largest.</summary>
+    private static double KthLargest(ReadOnlySpan<double> values, int k)
+    {
+        Span<double> top = k <= 256 ? stackalloc double[k] : new double[k];
+        top.Fill(double.NegativeInfinity);
+        foreach (double v in values)
+        {
+            if (!(v > top[^1])) continue;
+            int i = k - 1;
+            while (i > 0 && v > top[i - 1]) { top[i] = top[i - 1]; i--; }
+            top[i] = v;
+        }
+        return top[^1];
+    }
+
+    /// <summary>Top-k scoring: the mean of each task's <see cref="ResolverOptions.TopK"/> best phrase scores.</summary>
+    private void ScoreTopK(ResolverState state, ReadOnlySpan<float> sims, Span<float> scores)
+    {
+        int rowCount = sims.Length;
+        float[] sorted = ArrayPool<float>.Shared.Rent(Math.Max(1, rowCount));
+        try
+        {
+            int start = 0;
+            for (int t = 0; t < state.TaskCount; t++)
+            {
+                int end = start;
+                while (end < rowCount && state.PhraseTask[end] == t) end++;
+                var slice = sorted.AsSpan(0, end - start);
+                sims[start..end].CopyTo(slice);
+                slice.Sort();
+                int k = Math.Min(_options.TopK, slice.Length);
+                scores[t] = k == 0 ? float.NegativeInfinity : TensorPrimitives.Sum(slice[(slice.Length - k)..]) / k;
+                start = end;
+            }
+        }
+        finally
+        {
+            ArrayPool<float>.Shared.Return(sorted);
+        }
+    }
+
+    /// <summary>
+    /// The <paramref name="count"/> best candidates (fewer when the registry has fewer tasks), highest score first,
+    /// ties to the earlier task, each with its task's nearest approved phrase (its row found now when
+    /// <paramref name="rows"/> holds -1); <paramref name="best"/> receives the first one's task position.
+    /// </summary>
+    private static TaskCandidate[] TopCandidates(ResolverState state, ReadOnlySpan<float> vector, ReadOnlySpan<float> scores, Span<int> rows, int count, out int best)
+    {
+        count = Math.Min(count, scores.Length);
+        Span<int> top = count <= MaxStackTasks ? stackalloc int[count] : new int[count];
+        SelectTop(scores, top);
+        var candidates = new TaskCandidate[count];
+        for (int k = 0; k < count; k++)
+        {
+            if (rows[top[k]] < 0) rows[top[k]] = NearestRow(state, vector, top[k]);
+            var task = state.Registry.Tasks[top[k]];
+            candidates[k] = new TaskCandidate(task.Id, task.Phrases[state.PhraseOrdinal[rows[top[k]]]], scores[top[k]]);
+        }
+        best = count > 0 ? top[0] : -1;
+        return candidates;
+    }
+
+    /// <summary>
+    /// The positions of the <paramref name="top"/>.Length highest <paramref name="scores"/>, best first, ties (and NaN,
+    /// lowest) in the order of <see cref="float.CompareTo(float)"/> and then of position: what a stable descending sort
+    /// (<c>OrderByDescending(score).ThenBy(position)</c>) gives, in one pass and without allocating.
+    /// </summary>
+    internal static void SelectTop(ReadOnlySpan<float> scores, Span<int> top)
+    {
+        if (top.IsEmpty) return;
+        int filled = 0;
+        for (int t = 0; t < scores.Length; t++)
+        {
+            // A later position never beats an equal score, so it goes after the last strictly better one.
+            if (filled == top.Length && scores[t].CompareTo(scores[top[^1]]) <= 0) continue;
+            int i = Math.Min(filled, top.Length - 1);
+            while (i > 0 && scores[t].CompareTo(scores[top[i - 1]]) > 0)
+            {
+                top[i] = top[i - 1];
+                i--;
+            }
+            top[i] = t;
+            if (filled < top.Length) filled++;
+        }
+    }
+
+    /// <summary>Returns the pooled arrays (if any) that held the scores and rows of a registry of more than <see cref="MaxStackTasks"/> tasks.</summary>
+    private static void ReturnPooled(float[]? scores, int[]? rows)
+    {
+        if (scores is not null) ArrayPool<float>.Shared.Return(scores);
+        if (rows is not null) ArrayPool<int>.Shared.Return(rows);
+    }
+}

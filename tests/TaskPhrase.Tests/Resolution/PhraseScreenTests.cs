@@ -1,0 +1,135 @@
+using System.Numerics.Tensors;
+using TaskPhrase.Registry;
+using TaskPhrase.Resolution;
+using TaskPhrase.Tests.TestDoubles;
+
+namespace TaskPhrase.Tests.Resolution;
+
+/// <summary>
+/// The 8-bit phrase screen of best-phrase scoring. Its bounds hold for every row against the exact float dot product
+/// (<see cref="TensorPrimitives.Dot(ReadOnlySpan{float}, ReadOnlySpan{float})"/>, the reference library); the integer
+/// kernel equals a plain loop; and resolving with the screen gives exactly what the full scan gives — every field,
+/// the cross-task anchor rule included, which must score tasks the screen left out (differential testing, common
+/// practice).
+/// </summary>
+public class PhraseScreenTests
+{
+    private const int Dims = 48;
+
+    [Fact]
+    public void Bounds_RandomRows_HoldForEveryExactScore()
+    {
+        var random = new Random(17);
+        int rows = 600;
+        var phrases = new float[rows * Dims];
+        for (int r = 0; r < rows; r++) Gaussian(random).CopyTo(phrases.AsSpan(r * Dims));
+        var screen = PhraseScreen.Build(phrases, Dims);
+        var oneRowPerTask = Enumerable.Range(0, rows).ToArray();
+        var lower = new double[rows];
+        var upper = new double[rows];
+        double widest = 0;
+        for (int trial = 0; trial < 200; trial++)
+        {
+            var v = Gaussian(random);
+            if (trial % 4 == 0) phrases.AsSpan(random.Next(rows) * Dims, Dims).CopyTo(v);
+            Assert.True(screen.Bounds(v, oneRowPerTask, lower, upper));
+            for (int r = 0; r < rows; r++)
+            {
+                float exact = TensorPrimitives.Dot(v, phrases.AsSpan(r * Dims, Dims));
+                Assert.InRange(exact, lower[r], upper[r]);
+                widest = Math.Max(widest, upper[r] - lower[r]);
+            }
+        }
+        // Tight enough to screen: the interval is a small part of the score range of unit vectors.
+        Assert.True(widest < 0.1, $"bound interval up to {widest}");
+    }
+
+    [Fact]
+    public void Bounds_NonFiniteQuery_Declines()
+    {
+        var screen = PhraseScreen.Build(Gaussian(new Random(1)), Dims);
+        var v = new float[Dims];
+        v[3] = float.NaN;
+        Assert.False(screen.Bounds(v, [0], new double[1], new double[1]));
+    }
+
+    [Fact]
+    public void DotInt8_RandomVectors_EqualsPlainLoop()
+    {
+        var random = new Random(2);
+        foreach (int n in new[] { 0, 1, 15, 16, 17, 384, 391 })
+        {
+            var q = Enumerable.Range(0, n).Select(_ => (sbyte)random.Next(-127, 128)).ToArray();
+            var p = Enumerable.Range(0, n).Select(_ => (short)random.Next(-127, 128)).ToArray();
+            int expected = 0;
+            for (int i = 0; i < n; i++) expected += q[i] * p[i];
+            Assert.Equal(expected, PhraseScreen.DotInt8(q, p));
+        }
+    }
+
+    /// <summary>
+    /// 70 tasks of 10 phrases ("verb the object"); utterances name one task's object and another's, embedded between
+    /// the two, so the anchor rule must judge a competitor that is often outside the shown candidates.
+    /// </summary>
+    [Theory]
+    [InlineData(1)]
+    [InlineData(5)]
+    public void Resolve_WithScreen_EqualsFullScan(int candidates)
+    {
+        var random = new Random(40 + candidates);
+        string[] verbs = ["move", "fetch", "lift", "carry", "bring", "hold", "take", "pass", "find", "grab"];
+        var vectors = new Dictionary<string, float[]>(StringComparer.Ordinal);
+        var tasks = new List<TaskDefinition>();
+        for (int t = 0; t < 70; t++)
+        {
+            var phrases = verbs.Select(v => $"{v} the {Object(t)}").ToArray();
+            foreach (var p in phrases) vectors[p] = Gaussian(random);
+            tasks.Add(new TaskDefinition { Id = $"task-{t}", Title = $"Handle the {Object(t)}", Controller = new ControllerBinding("m.v1", 1), Phrases = phrases });
+        }
+        var utterances = new List<string>();
+        for (int i = 0; i < 300; i++)
+        {
+            int a = random.Next(70), b = (a + 1 + random.Next(69)) % 70;
+            string u = $"{verbs[i % 10]} the {Object(a)} and the {Object(b)} {i}";
+            var v = vectors[$"{verbs[i % 10]} the {Object(a)}"].ToArray();
+            var other = new float[Dims];
+            TensorPrimitives.Multiply(vectors[$"{verbs[(i + 3) % 10]} the {Object(b)}"], (float)(0.2 + random.NextDouble()), other);
+            TensorPrimitives.Add(v, other, v);
+            vectors[u] = v;
+            utterances.Add(u);
+        }
+        var generator = new ScriptedEmbeddingGenerator(vectors);
+        var registry = new TaskRegistry(tasks, RegistryDefaults.Standard, "screen-test");
+        ResolverOptions Options(bool screen) => new()
+        {
+            Scoring = ScoringStrategy.BestPhrase, UnintelligibleGuard = false, Candidates = candidates, AcceptOverride = 0f, PhraseScreen = screen,
+        };
+        var screened = TaskResolver.Create(registry, generator, Options(true));
+        var full = TaskResolver.Create(registry, generator, Options(false));
+
+        int mixed = 0, kept = 0;
+        foreach (var u in utterances)
+        {
+            var expected = full.Resolve(u);
+            var actual = screened.Resolve(u);
+            Assert.Equal(expected.Candidates, actual.Candidates);
+            Assert.Equal(expected.UncoveredWords, actual.UncoveredWords);
+            Assert.Equal(expected with { Elapsed = default, Candidates = [], UncoveredWords = [] }, actual with { Elapsed = default, Candidates = [], UncoveredWords = [] });
+            Assert.Equal(full.Rank(u, 9), screened.Rank(u, 9));
+            if (expected.Detail?.StartsWith("mixes tasks", StringComparison.Ordinal) == true) mixed++;
+            else kept++;
+        }
+        // Both sides of the anchor rule were exercised.
+        Assert.True(mixed >= 20 && kept >= 20, $"anchor rule fired {mixed} times, not {kept} times");
+    }
+
+    private static string Object(int t) => $"ob{(char)('a' + t / 26)}{(char)('a' + t % 26)}ject";
+
+    /// <summary>A random unit vector (normalised Gaussian draws, common practice).</summary>
+    private static float[] Gaussian(Random random)
+    {
+        var v = Enumerable.Range(0, Dims).Select(_ => (float)(Math.Sqrt(-2.0 * Math.Log(1.0 - random.NextDouble())) * Math.Cos(2 * Math.PI * random.NextDouble()))).ToArray();
+        TensorPrimitives.Divide(v, TensorPrimitives.Norm(v), v);
+        return v;
+    }
+}

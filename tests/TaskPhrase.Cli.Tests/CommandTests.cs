@@ -51,6 +51,16 @@ public class CommandTests(CliFixture cli)
     }
 
     [Fact]
+    public void Resolve_CorrectedSpeechSlip_ShowsTheCorrectionOnTheTerminal()
+    {
+        var (exit, output, _) = cli.Run("resolve", "--registry", Registry, "turn the paige");
+        Assert.Equal(0, exit);
+        Assert.Contains("accepted", output);
+        Assert.Contains("page-turn", output);
+        Assert.Contains("corrected: paige → page (sounds alike)", output);
+    }
+
+    [Fact]
     public void Resolve_ConfirmTask_SaysSoInJson()
     {
         var (_, output, _) = cli.Run("resolve", "--registry", Registry, "--json", "pour water from the kettle into my teapot");

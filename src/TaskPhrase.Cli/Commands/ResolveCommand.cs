@@ -78,6 +78,8 @@ internal static class ResolveCommand
         console.MarkupLine($"[{color}]{ResolutionJson.Name(r.Outcome)}[/] {Markup.Escape(Printable(r.Utterance))} → {what}  [grey]score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}[/]");
         if (r.Detail is { } detail && r.Outcome != ResolutionOutcome.Accepted)
             console.MarkupLine($"  [grey]{Markup.Escape(detail)}[/]");
+        else if (r.Outcome == ResolutionOutcome.Accepted && r.Corrections.Count > 0)
+            console.MarkupLine($"  [grey]corrected: {Markup.Escape(Printable(string.Join("; ", r.Corrections)))}[/]");
     }
 
     /// <summary>

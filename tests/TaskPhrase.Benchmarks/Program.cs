@@ -26,6 +26,9 @@ switch (args.FirstOrDefault())
     case "int8-paired":
         Int8PairedHarness.Run(args.Skip(1));
         return 0;
+    case "peers":
+        PeerHarness.Run(args.Skip(1));
+        return 0;
     case "search":
         SearchHarness.Run(args.Skip(1));
         return 0;

@@ -1,0 +1,72 @@
+using System.Diagnostics;
+using System.Reflection;
+
+namespace TaskPhrase.Cli.Tests;
+
+/// <summary>
+/// The int8 variant as a build step (<c>-p:TaskPhraseInt8=true</c>, target <c>TaskPhraseQuantizeModel</c> in
+/// TaskPhrase.Cli.csproj): MSBuild runs the built tool's <c>quantize</c> verb, the output equals what the verb writes
+/// itself, and a second build skips the step. Only the target runs here (no rebuild of the tool under test).
+/// </summary>
+[Collection(CliCollection.Name)]
+[Trait("tier", "slow")]
+public sealed class QuantizeBuildStepTests(CliFixture cli) : IDisposable
+{
+    private readonly string _dir = Directory.CreateTempSubdirectory("taskphrase-int8-build-").FullName;
+
+    public void Dispose() => Directory.Delete(_dir, recursive: true);
+
+    [Fact]
+    public void BuildStep_WritesTheSameVariantAsTheVerb_AndIsIncremental()
+    {
+        string fromBuild = Path.Combine(_dir, "build");
+        var (exit, output) = RunTarget(fromBuild);
+        Assert.True(exit == 0, output);
+        foreach (var name in new[] { "model.onnx", "vocab.txt", "model.json" })
+            Assert.True(File.Exists(Path.Combine(fromBuild, name)), $"{name} missing; MSBuild said:\n{output}");
+
+        string fromVerb = Path.Combine(_dir, "verb");
+        var (verbExit, _, verbError) = cli.Run("quantize", "--output", fromVerb);
+        Assert.True(verbExit == 0, verbError);
+        Assert.Equal(File.ReadAllBytes(Path.Combine(fromVerb, "model.onnx")), File.ReadAllBytes(Path.Combine(fromBuild, "model.onnx")));
+        Assert.Equal(File.ReadAllText(Path.Combine(fromVerb, "model.json")), File.ReadAllText(Path.Combine(fromBuild, "model.json")));
+
+        var written = File.GetLastWriteTimeUtc(Path.Combine(fromBuild, "model.json"));
+        var (again, againOutput) = RunTarget(fromBuild);
+        Assert.True(again == 0, againOutput);
+        Assert.Contains("Skipping target \"TaskPhraseQuantizeModel\"", againOutput);
+        Assert.Equal(written, File.GetLastWriteTimeUtc(Path.Combine(fromBuild, "model.json")));
+    }
+
+    private static (int Exit, string Output) RunTarget(string output)
+    {
+        string project = Path.Combine(RepoRoot(), "src", "TaskPhrase.Cli", "TaskPhrase.Cli.csproj");
+        var start = new ProcessStartInfo(Environment.GetEnvironmentVariable("DOTNET_HOST_PATH") is { Length: > 0 } host ? host : "dotnet")
+        {
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            UseShellExecute = false,
+        };
+        foreach (var a in new[] { "msbuild", project, "-t:TaskPhraseQuantizeModel", $"-p:Configuration={Configuration}", "-p:TaskPhraseInt8=true",
+                     $"-p:TaskPhraseInt8Output={output}", "-nologo", "-v:n", "-nodeReuse:false" })
+            start.ArgumentList.Add(a);
+        using var process = Process.Start(start)!;
+        var stdout = process.StandardOutput.ReadToEndAsync();
+        var stderr = process.StandardError.ReadToEndAsync();
+        if (!process.WaitForExit(TimeSpan.FromMinutes(3)))
+        {
+            process.Kill(entireProcessTree: true);
+            return (-1, "MSBuild did not finish within 3 minutes");
+        }
+        return (process.ExitCode, stdout.Result + stderr.Result);
+    }
+
+    private static string Configuration => typeof(QuantizeBuildStepTests).Assembly.GetCustomAttribute<AssemblyConfigurationAttribute>()?.Configuration ?? "Debug";
+
+    private static string RepoRoot()
+    {
+        for (var dir = new DirectoryInfo(AppContext.BaseDirectory); dir is not null; dir = dir.Parent)
+            if (File.Exists(Path.Combine(dir.FullName, "TaskPhrase.sln"))) return dir.FullName;
+        throw new DirectoryNotFoundException($"TaskPhrase.sln not found above {AppContext.BaseDirectory}.");
+    }
+}

@@ -91,7 +91,7 @@ public sealed partial class TaskResolver
     }
 
     /// <summary>Second chances for the out-of-scope rejections among <paramref name="embedded"/>, the rewrites embedded in one batch.</summary>
-    private async Task RetrySoundAlikesAsync(ResolverState state, Prepared[] prepared, Resolution[] results, List<int> embedded,
+    private async Task RetryOutOfScopeAsync(ResolverState state, Prepared[] prepared, Resolution[] results, List<int> embedded,
         CancellationToken cancellationToken)
     {
         var retries = new List<(int Index, Retry Retry)>();
@@ -100,25 +100,7 @@ public sealed partial class TaskResolver
         if (retries.Count == 0) return;
 
         var second = new Resolution[retries.Count];
-        var toEmbed = new List<int>();
-        for (int k = 0; k < retries.Count; k++)
-        {
-            if (retries[k].Retry.Prepared.Early is { } early) second[k] = early;
-            else toEmbed.Add(k);
-        }
-        if (toEmbed.Count > 0)
-        {
-            var embeddings = await _generator.GenerateAsync(toEmbed.Select(k => retries[k].Retry.Prepared.Text).ToList(), null, cancellationToken)
-                .ConfigureAwait(false);
-            for (int j = 0; j < toEmbed.Count; j++)
-            {
-                int k = toEmbed[j];
-                var e = embeddings[j];
-                CheckWidth(e.Vector.Length, state.Dimensions);
-                bool truncated = e.AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
-                second[k] = Decide(state, retries[k].Retry.Prepared, e.Vector.Span, truncated);
-            }
-        }
+        await DecideAllAsync(state, retries.Select(r => r.Retry.Prepared).ToArray(), second, cancellationToken).ConfigureAwait(false);
         for (int k = 0; k < retries.Count; k++)
         {
             var (i, retry) = retries[k];

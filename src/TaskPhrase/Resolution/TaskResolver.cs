@@ -233,29 +233,38 @@ public sealed partial class TaskResolver
         long start = Stopwatch.GetTimestamp();
         var results = new Resolution[utterances.Count];
         var prepared = new Prepared[utterances.Count];
-        var toEmbed = new List<int>();
         for (int i = 0; i < utterances.Count; i++)
-        {
             prepared[i] = Prepare(state, utterances[i] ?? throw new ArgumentException($"Utterance {i} is null.", nameof(utterances)));
-            if (prepared[i].Early is { } early) results[i] = early;
-            else toEmbed.Add(i);
-        }
-        if (toEmbed.Count > 0)
-        {
-            var embeddings = await _generator.GenerateAsync(toEmbed.Select(i => prepared[i].Text).ToList(), null, cancellationToken).ConfigureAwait(false);
-            for (int k = 0; k < toEmbed.Count; k++)
-            {
-                int i = toEmbed[k];
-                var e = embeddings[k];
-                CheckWidth(e.Vector.Length, state.Dimensions);
-                bool truncated = e.AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
-                results[i] = Decide(state, prepared[i], e.Vector.Span, truncated);
-            }
-            await RetrySoundAlikesAsync(state, prepared, results, toEmbed, cancellationToken).ConfigureAwait(false);
-        }
+        var embedded = await DecideAllAsync(state, prepared, results, cancellationToken).ConfigureAwait(false);
+        if (embedded.Count > 0) await RetryOutOfScopeAsync(state, prepared, results, embedded, cancellationToken).ConfigureAwait(false);
         var elapsed = Stopwatch.GetElapsedTime(start) / Math.Max(1, utterances.Count);
         for (int i = 0; i < results.Length; i++) results[i].StampElapsed(elapsed);
         return results;
+    }
+
+    /// <summary>
+    /// Fills <paramref name="results"/> for <paramref name="prepared"/>: early resolutions as they are, the others decided
+    /// on embeddings made in one batched call. Returns the positions that were embedded.
+    /// </summary>
+    private async Task<List<int>> DecideAllAsync(ResolverState state, Prepared[] prepared, Resolution[] results, CancellationToken cancellationToken)
+    {
+        var toEmbed = new List<int>();
+        for (int i = 0; i < prepared.Length; i++)
+        {
+            if (prepared[i].Early is { } early) results[i] = early;
+            else toEmbed.Add(i);
+        }
+        if (toEmbed.Count == 0) return toEmbed;
+        var embeddings = await _generator.GenerateAsync(toEmbed.Select(i => prepared[i].Text).ToList(), null, cancellationToken).ConfigureAwait(false);
+        for (int k = 0; k < toEmbed.Count; k++)
+        {
+            int i = toEmbed[k];
+            var e = embeddings[k];
+            CheckWidth(e.Vector.Length, state.Dimensions);
+            bool truncated = e.AdditionalProperties?.TryGetValue("truncated", out var t) == true && t is true;
+            results[i] = Decide(state, prepared[i], e.Vector.Span, truncated);
+        }
+        return toEmbed;
     }
 
     /// <summary>

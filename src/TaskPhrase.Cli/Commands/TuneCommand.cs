@@ -139,6 +139,8 @@ internal static class TuneCommand
         if (p?.L2 is { } l2) writer.WriteNumber("l2", l2); else writer.WriteNull("l2");
         if (p?.Temperature is { } t) writer.WriteNumber("temperature", t); else writer.WriteNull("temperature");
         if (p?.ProbabilityWeight is { } w) writer.WriteNumber("probability_weight", w); else writer.WriteNull("probability_weight");
+        if (p?.K is { } k) writer.WriteNumber("k", k); else writer.WriteNull("k");
+        if (p?.CentroidWeight is { } cw) writer.WriteNumber("centroid_weight", cw); else writer.WriteNull("centroid_weight");
         writer.WriteEndObject();
     }
 

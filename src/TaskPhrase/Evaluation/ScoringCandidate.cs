@@ -27,13 +27,20 @@ public sealed record ScoringCandidate(string Strategy, ScoringParameters? Parame
     /// <summary>Probability weights α the default search tries for <c>head</c> (score p^α · c^(1 − α); no retraining).</summary>
     public static IReadOnlyList<double> DefaultProbabilityWeights { get; } = Array.AsReadOnly(new[] { 0.25, 0.5, 0.75 });
 
+    /// <summary>k values the default search tries for <c>top-k</c> (3 is the built-in default and is left implicit).</summary>
+    public static IReadOnlyList<int> DefaultK { get; } = Array.AsReadOnly(new[] { 3, 2, 5 });
+
+    /// <summary>Centroid weights the default search tries for <c>blend</c> (0.5 is the built-in default and is left implicit).</summary>
+    public static IReadOnlyList<double> DefaultCentroidWeights { get; } = Array.AsReadOnly(new[] { 0.5, 0.25, 0.75 });
+
     /// <summary>Readable form, e.g. <c>head (l2 0.01, temperature 2)</c>.</summary>
     public string Label => Parameters is null || Parameters.IsEmpty ? Strategy : $"{Strategy} ({Parameters})";
 
     /// <summary>
-    /// The default search: centroid, best-phrase, top-k (k 3), blend, whitened at each of <see cref="DefaultShrinkages"/>,
+    /// The default search: centroid, best-phrase, top-k at each of <see cref="DefaultK"/>, blend at each of
+    /// <see cref="DefaultCentroidWeights"/>, whitened at each of <see cref="DefaultShrinkages"/>,
     /// and head at each of <see cref="DefaultL2"/> × <see cref="DefaultTemperatures"/> × <see cref="DefaultProbabilityWeights"/>
-    /// (Ledoit–Wolf shrinkage; α 0.5 is left implicit) — 35 settings, three head trainings. Restricted to <paramref name="strategies"/> when given (order kept as above).
+    /// (Ledoit–Wolf shrinkage; α 0.5 is left implicit) — 39 settings, three head trainings. Restricted to <paramref name="strategies"/> when given (order kept as above).
     /// </summary>
     /// <param name="strategies">Strategy names to keep, or null for all.</param>
     /// <exception cref="ArgumentException">A name is not a strategy, or the list is empty.</exception>
@@ -53,6 +60,12 @@ public sealed record ScoringCandidate(string Strategy, ScoringParameters? Parame
             if (keep is not null && !keep.Contains(name)) continue;
             switch (name)
             {
+                case "top-k":
+                    foreach (var k in DefaultK) grid.Add(new ScoringCandidate(name, k == 3 ? null : new ScoringParameters { K = k }));
+                    break;
+                case "blend":
+                    foreach (var w in DefaultCentroidWeights) grid.Add(new ScoringCandidate(name, w == 0.5 ? null : new ScoringParameters { CentroidWeight = w }));
+                    break;
                 case "whitened":
                     foreach (var s in DefaultShrinkages) grid.Add(new ScoringCandidate(name, s is null ? null : new ScoringParameters { Shrinkage = s }));
                     break;

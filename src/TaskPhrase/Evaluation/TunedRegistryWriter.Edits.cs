@@ -170,6 +170,8 @@ public static partial class TunedRegistryWriter
         if (p.L2 is { } l2) sb.Append($"{newline}{indent}  l2: {ScoringCandidate.Format(l2)}");
         if (p.Temperature is { } t) sb.Append($"{newline}{indent}  temperature: {ScoringCandidate.Format(t)}");
         if (p.ProbabilityWeight is { } w) sb.Append($"{newline}{indent}  probability_weight: {ScoringCandidate.Format(w)}");
+        if (p.K is { } k) sb.Append($"{newline}{indent}  k: {k.ToString(System.Globalization.CultureInfo.InvariantCulture)}");
+        if (p.CentroidWeight is { } cw) sb.Append($"{newline}{indent}  centroid_weight: {ScoringCandidate.Format(cw)}");
         return sb.ToString();
     }
 
@@ -269,7 +271,9 @@ public static partial class TunedRegistryWriter
                     && (Find(m, "shrinkage", out _) as YamlScalarNode)?.Value == (p.Shrinkage is { } s ? ScoringCandidate.Format(s) : null)
                     && (Find(m, "l2", out _) as YamlScalarNode)?.Value == (p.L2 is { } l ? ScoringCandidate.Format(l) : null)
                     && (Find(m, "temperature", out _) as YamlScalarNode)?.Value == (p.Temperature is { } t ? ScoringCandidate.Format(t) : null)
-                    && (Find(m, "probability_weight", out _) as YamlScalarNode)?.Value == (p.ProbabilityWeight is { } w ? ScoringCandidate.Format(w) : null);
+                    && (Find(m, "probability_weight", out _) as YamlScalarNode)?.Value == (p.ProbabilityWeight is { } w ? ScoringCandidate.Format(w) : null)
+                    && (Find(m, "k", out _) as YamlScalarNode)?.Value == p.K?.ToString(System.Globalization.CultureInfo.InvariantCulture)
+                    && (Find(m, "centroid_weight", out _) as YamlScalarNode)?.Value == (p.CentroidWeight is { } cw ? ScoringCandidate.Format(cw) : null);
             if (!ok) throw new InvalidOperationException(Problem("does not hold the chosen scoring setting"));
         }
         if (Find(root, "tasks", out _) is not YamlSequenceNode tasks) throw new InvalidOperationException(Problem("lost its task list"));

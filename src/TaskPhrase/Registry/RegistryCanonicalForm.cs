@@ -130,6 +130,8 @@ public static class RegistryCanonicalForm
         Add("l2", parameters.L2);
         Add("temperature", parameters.Temperature);
         Add("probability_weight", parameters.ProbabilityWeight);
+        Add("k", parameters.K);
+        Add("centroid_weight", parameters.CentroidWeight);
         sb.Append('}');
     }
 

@@ -3,7 +3,7 @@ namespace TaskPhrase.Registry;
 internal sealed partial class RegistryValidator
 {
     /// <summary>Keys of the mapping form of <c>scoring</c>.</summary>
-    internal static readonly string[] ScoringKeys = ["strategy", "shrinkage", "l2", "temperature", "probability_weight"];
+    internal static readonly string[] ScoringKeys = ["strategy", "shrinkage", "l2", "temperature", "probability_weight", "k", "centroid_weight"];
 
     /// <summary>
     /// <c>scoring: NAME</c>, or <c>scoring: {strategy: NAME, shrinkage: λ, l2: λ, temperature: T}</c> with the parameters
@@ -31,7 +31,19 @@ internal sealed partial class RegistryValidator
         double? temperature = ReadScoringNumber(scoring, "temperature", strategy, ["head"], 0.01, 100, lowOpen: false, "the head's softmax temperature, from 0.01 to 100 (1 to 4 is usual)");
         double? weight = ReadScoringNumber(scoring, "probability_weight", strategy, ["head"], 0, 1, lowOpen: false,
             "the weight of the head's probability against the centroid cosine in the task score, from 0 to 1 (0.5: their geometric mean)");
-        var parameters = new ScoringParameters { Shrinkage = shrinkage, L2 = l2, Temperature = temperature, ProbabilityWeight = weight };
+        double? k = ReadScoringNumber(scoring, "k", strategy, ["top-k"], 1, ScoringParameters.MaxK, lowOpen: false,
+            $"how many of a task's best phrase similarities are averaged, a whole number from 1 to {ScoringParameters.MaxK}");
+        if (k is { } kv && kv != Math.Floor(kv) && scoring.TryGet("k", out _, out var kNode))
+        {
+            _bag.Error(RegistryDiagnosticCodes.WrongType, kNode.Position, $"'k' of 'scoring' must be a whole number (how many best phrases are averaged), but is {kv.ToString(System.Globalization.CultureInfo.InvariantCulture)}.");
+            k = null;
+        }
+        double? centroidWeight = ReadScoringNumber(scoring, "centroid_weight", strategy, ["blend"], 0, 1, lowOpen: false,
+            "the weight of the centroid cosine against the best phrase's, from 0 to 1 (0.5: their mean)");
+        var parameters = new ScoringParameters
+        {
+            Shrinkage = shrinkage, L2 = l2, Temperature = temperature, ProbabilityWeight = weight, K = k is { } kk ? (int)kk : null, CentroidWeight = centroidWeight,
+        };
         return (strategy, parameters.IsEmpty ? null : parameters);
     }
 

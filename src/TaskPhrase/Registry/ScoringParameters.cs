@@ -27,8 +27,20 @@ public sealed record ScoringParameters
     /// </summary>
     public double? ProbabilityWeight { get; init; }
 
+    /// <summary>The largest <see cref="K"/> a registry may give.</summary>
+    public const int MaxK = 50;
+
+    /// <summary>How many of a task's best phrase similarities are averaged, 1 to 50 (strategy <c>top-k</c>); null for 3.</summary>
+    public int? K { get; init; }
+
+    /// <summary>
+    /// Weight of the centroid cosine against the best phrase's in the task score, in [0, 1] (strategy <c>blend</c>);
+    /// null for 0.5, their mean.
+    /// </summary>
+    public double? CentroidWeight { get; init; }
+
     /// <summary>True when no parameter is set (the plain <c>scoring: NAME</c> form says the same).</summary>
-    public bool IsEmpty => Shrinkage is null && L2 is null && Temperature is null && ProbabilityWeight is null;
+    public bool IsEmpty => Shrinkage is null && L2 is null && Temperature is null && ProbabilityWeight is null && K is null && CentroidWeight is null;
 
     /// <summary>The set parameters as <c>key value</c> pairs in registry key order, e.g. <c>l2 0.01, temperature 2</c>; empty when none.</summary>
     public override string ToString()
@@ -38,6 +50,8 @@ public sealed record ScoringParameters
         if (L2 is { } l) parts.Add("l2 " + l.ToString("R", CultureInfo.InvariantCulture));
         if (Temperature is { } t) parts.Add("temperature " + t.ToString("R", CultureInfo.InvariantCulture));
         if (ProbabilityWeight is { } w) parts.Add("probability_weight " + w.ToString("R", CultureInfo.InvariantCulture));
+        if (K is { } k) parts.Add("k " + k.ToString(CultureInfo.InvariantCulture));
+        if (CentroidWeight is { } c) parts.Add("centroid_weight " + c.ToString("R", CultureInfo.InvariantCulture));
         return string.Join(", ", parts);
     }
 }

@@ -27,6 +27,14 @@ internal static class RegistryScoring
         if (parameters.L2 is { } l2) result = result with { L2 = l2 };
         if (parameters.Temperature is { } t) result = result with { Temperature = t };
         if (parameters.ProbabilityWeight is { } w) result = result with { ProbabilityWeight = w };
+        if (parameters.CentroidWeight is { } c) result = result with { BlendCentroidWeight = c };
         return result;
     }
+
+    /// <summary>
+    /// k of <see cref="ScoringStrategy.TopK"/> for <paramref name="registry"/>: the registry's <c>k</c> when the strategy
+    /// comes from the registry and it gives one, else <see cref="ResolverOptions.TopK"/>.
+    /// </summary>
+    public static int TopKFor(TaskRegistry registry, ResolverOptions options)
+        => options.Scoring is null && registry.Settings.ScoringParameters?.K is { } k ? k : options.TopK;
 }

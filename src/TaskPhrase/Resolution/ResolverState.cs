@@ -74,6 +74,12 @@ internal sealed record ResolverState
     /// <summary>The 8-bit phrase screen (best-phrase scoring over at least <see cref="PhraseScreen.MinRows"/> rows), else null.</summary>
     public PhraseScreen? Screen { get; init; }
 
+    /// <summary>k of <see cref="ScoringStrategy.TopK"/> (set after <see cref="Build"/> from the registry or the options).</summary>
+    public int TopK { get; init; } = 3;
+
+    /// <summary>Weight of the centroid cosine in <see cref="ScoringStrategy.Blend"/> (the rest goes to the best phrase).</summary>
+    public float BlendCentroidWeight { get; init; } = 0.5f;
+
     public int TaskCount => Registry.Tasks.Count;
 
     public static ResolverState Build(TaskRegistry registry, EmbeddingModelInfo model, ReadOnlySpan<float> phrases,
@@ -151,6 +157,7 @@ internal sealed record ResolverState
             WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
             Screen = scoring == ScoringStrategy.BestPhrase && phraseCount >= PhraseScreen.MinRows ? PhraseScreen.Build(phrases, dims) : null,
+            BlendCentroidWeight = (float)(learned ?? LearnedScoringOptions.Default).BlendCentroidWeight,
             Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
             Head = scoring != ScoringStrategy.Head ? null
                 : head is null ? TaskHead.Train(phrases, phraseTask, tasks.Count, mustReject, dims, learned)

@@ -14,7 +14,7 @@ public sealed partial class TaskResolver
     internal TaskResolver WithHead(TaskHead head)
     {
         var s = Volatile.Read(ref _state);
-        var state = ResolverState.Build(s.Registry, s.Model, s.Phrases, s.MustReject, ScoringStrategy.Head, _options.Learned, head);
+        var state = ResolverState.Build(s.Registry, s.Model, s.Phrases, s.MustReject, ScoringStrategy.Head, _options.Learned, head) with { TopK = s.TopK };
         return new TaskResolver(_generator, _model, _options, state);
     }
 }

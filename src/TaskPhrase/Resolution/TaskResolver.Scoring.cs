@@ -47,7 +47,7 @@ public sealed partial class TaskResolver
                     for (int t = 0; t < taskCount; t++)
                     {
                         float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(t * dims, dims));
-                        scores[t] = 0.5f * (c + scores[t]);
+                        scores[t] = state.BlendCentroidWeight * c + (1 - state.BlendCentroidWeight) * scores[t];
                     }
                     return null;
                 case ScoringStrategy.TopK:
@@ -187,7 +187,7 @@ public sealed partial class TaskResolver
                 var slice = sorted.AsSpan(0, end - start);
                 sims[start..end].CopyTo(slice);
                 slice.Sort();
-                int k = Math.Min(_options.TopK, slice.Length);
+                int k = Math.Min(state.TopK, slice.Length);
                 scores[t] = k == 0 ? float.NegativeInfinity : TensorPrimitives.Sum(slice[(slice.Length - k)..]) / k;
                 start = end;
             }

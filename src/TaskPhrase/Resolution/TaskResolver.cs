@@ -88,7 +88,7 @@ public sealed partial class TaskResolver
             throw new InvalidOperationException($"The embeddings were computed with model '{model.Id}' (SHA-256 {model.Sha256}) but the generator runs '{live.Id}' (SHA-256 {live.Sha256}). Rebuild the index with this model.");
         var scoring = ChooseScoring(registry, options);
         var state = ResolverState.Build(registry, model, phraseEmbeddings, mustRejectEmbeddings, scoring, RegistryScoring.LearnedFor(registry, options),
-            scoring == ScoringStrategy.Head ? head : null);
+            scoring == ScoringStrategy.Head ? head : null) with { TopK = RegistryScoring.TopKFor(registry, options) };
         return new TaskResolver(generator, model, options, state);
     }
 
@@ -185,7 +185,8 @@ public sealed partial class TaskResolver
         var head = index.Sections.TryGetValue(TaskIndexBuilder.HeadSection, out var headBytes) ? TaskPhrase.Resolution.Scoring.TaskHead.FromBytes(headBytes.Span) : null;
         var film = index.Sections.TryGetValue(TaskIndexBuilder.FilmSection, out var filmBytes) ? FilmTable.FromBytes(filmBytes.Span, null, $"{index.SourcePath} [film]") : null;
         var scoring = ChooseScoring(index.Registry, _options);
-        var state = ResolverState.Build(index.Registry, _model, index.PhraseEmbeddings.Span, rejects, scoring, RegistryScoring.LearnedFor(index.Registry, _options), scoring == ScoringStrategy.Head ? head : null);
+        var state = ResolverState.Build(index.Registry, _model, index.PhraseEmbeddings.Span, rejects, scoring, RegistryScoring.LearnedFor(index.Registry, _options), scoring == ScoringStrategy.Head ? head : null)
+            with { TopK = RegistryScoring.TopKFor(index.Registry, _options) };
         Volatile.Write(ref _state, film is not null ? state with { Film = film } : WithFilm(state, _film));
     }
 
@@ -193,7 +194,8 @@ public sealed partial class TaskResolver
     public void Reload(TaskRegistry registry, ReadOnlySpan<float> phraseEmbeddings, ReadOnlySpan<float> mustRejectEmbeddings)
     {
         ArgumentNullException.ThrowIfNull(registry);
-        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options), RegistryScoring.LearnedFor(registry, _options));
+        var state = ResolverState.Build(registry, _model, phraseEmbeddings, mustRejectEmbeddings, ChooseScoring(registry, _options), RegistryScoring.LearnedFor(registry, _options))
+            with { TopK = RegistryScoring.TopKFor(registry, _options) };
         Volatile.Write(ref _state, WithFilm(state, _film));
     }
 
@@ -334,6 +336,7 @@ public sealed partial class TaskResolver
             CheckWidth(v.Length, model.Dimensions);
             v.CopyTo(i < phraseCount ? phrases.AsSpan(i * model.Dimensions) : rejects.AsSpan((i - phraseCount) * model.Dimensions));
         }
-        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options), RegistryScoring.LearnedFor(registry, options)));
+        return (model, ResolverState.Build(registry, model, phrases, rejects, ChooseScoring(registry, options), RegistryScoring.LearnedFor(registry, options))
+            with { TopK = RegistryScoring.TopKFor(registry, options) });
     }
 }

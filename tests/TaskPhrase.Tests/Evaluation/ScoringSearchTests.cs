@@ -59,7 +59,7 @@ public class ScoringSearchTests(ModelFixture fixture)
         var search = ScoringSearch.Run(registry, fixture.Embedder, cases, budgets, ScoringCandidate.DefaultGrid());
 
         Assert.True(search.Result.Feasible);
-        Assert.Equal(35, search.Outcomes.Count);
+        Assert.Equal(39, search.Outcomes.Count);
         Assert.Equal(search.Chosen, search.Result.Scoring);
         // The winner has the most correct acceptances among the feasible settings, at least the centroid's.
         int best = search.Outcomes.Where(o => o.Result.Feasible).Max(o => o.Result.Metrics.InScopeAccuracy.Count);
@@ -69,7 +69,7 @@ public class ScoringSearchTests(ModelFixture fixture)
         var (tuned, text) = Tuned(yaml, search);
         Assert.Equal(search.Chosen.Strategy, tuned.Settings.Scoring);
         Assert.Equal(search.Chosen.Parameters, tuned.Settings.ScoringParameters);
-        Assert.Contains($"Scoring: {search.Chosen.Label}, the best of 35 settings", text);
+        Assert.Contains($"Scoring: {search.Chosen.Label}, the best of 39 settings", text);
         var (correct, wrong, fa, inScope, oos) = Count(TaskResolver.Create(tuned, fixture.Embedder), cases);
         Assert.True(fa <= 0.05 * oos, $"{fa} of {oos} out-of-scope probes accepted");
         Assert.Equal(0, wrong);

@@ -65,11 +65,29 @@ public class ScoringParametersTests
     [InlineData("scoring: {strategy: head, l2: lots}", "must be a number")]
     [InlineData("scoring: {strategy: centroid, probability_weight: 0.7}", "applies to the strategy head only")]
     [InlineData("scoring: {strategy: head, probability_weight: 1.5}", "out of range")]
+    [InlineData("scoring: {strategy: centroid, k: 2}", "applies to the strategy top-k only")]
+    [InlineData("scoring: {strategy: top-k, k: 2.5}", "must be a whole number")]
+    [InlineData("scoring: {strategy: top-k, k: 0}", "out of range")]
+    [InlineData("scoring: {strategy: top-k, k: 51}", "out of range")]
+    [InlineData("scoring: {strategy: head, centroid_weight: 0.3}", "applies to the strategy blend only")]
+    [InlineData("scoring: {strategy: blend, centroid_weight: -0.1}", "out of range")]
     public void Parse_BadMapping_SaysWhatIsWrong(string scoring, string expected)
     {
         var r = Parse(scoring);
         Assert.Null(r.Registry);
         Assert.Contains(r.Diagnostics, d => d.Message.Contains(expected, StringComparison.Ordinal));
         Assert.All(r.Diagnostics, d => Assert.Equal(2, d.Line));
+    }
+
+    [Fact]
+    public void Parse_TopKAndBlendParameters_AreReadAndCountInTheHash()
+    {
+        var topK = Parse("scoring: {strategy: top-k, k: 5}").Registry!;
+        Assert.Equal(5, topK.Settings.ScoringParameters!.K);
+        var blend = Parse("scoring: {strategy: blend, centroid_weight: 0.25}").Registry!;
+        Assert.Equal(0.25, blend.Settings.ScoringParameters!.CentroidWeight);
+        Assert.NotEqual(Parse("scoring: top-k").Registry!.ContentHash, topK.ContentHash);
+        Assert.NotEqual(Parse("scoring: blend").Registry!.ContentHash, blend.ContentHash);
+        Assert.Equal("k 5", topK.Settings.ScoringParameters.ToString());
     }
 }

@@ -2,8 +2,8 @@ namespace TaskPhrase.Resolution.Scoring;
 
 /// <summary>
 /// Settings of the scorers fitted to a registry's approved phrases: <see cref="Whitening"/> (used by
-/// <see cref="ScoringStrategy.Whitened"/>) and <see cref="TaskHead"/> (used by <see cref="ScoringStrategy.Head"/>).
-/// Immutable; every value is validated when set.
+/// <see cref="ScoringStrategy.Whitened"/>) and <see cref="TaskHead"/> (used by <see cref="ScoringStrategy.Head"/>), and
+/// the centroid weight of <see cref="ScoringStrategy.Blend"/>. Immutable; every value is validated when set.
 /// </summary>
 public sealed record LearnedScoringOptions
 {
@@ -13,6 +13,7 @@ public sealed record LearnedScoringOptions
     private readonly int _maxIterations = 500;
     private readonly double _probabilityWeight = TaskHead.DefaultProbabilityWeight;
     private readonly CovarianceKind _covariance = CovarianceKind.WithinTask;
+    private readonly double _blendCentroidWeight = 0.5;
 
     /// <summary>
     /// The defaults: within-task covariance, Ledoit–Wolf shrinkage, L2 0.001, temperature 1, 500 iterations (L2 as
@@ -67,6 +68,17 @@ public sealed record LearnedScoringOptions
     {
         get => _probabilityWeight;
         init => _probabilityWeight = value is >= 0 and <= 1 ? value : throw new ArgumentOutOfRangeException(nameof(ProbabilityWeight), value, "ProbabilityWeight must lie in [0, 1].");
+    }
+
+    /// <summary>
+    /// Weight w of the centroid cosine in the <see cref="ScoringStrategy.Blend"/> score w · centroid + (1 − w) · best
+    /// phrase (default 0.5, their mean).
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException">Not in [0, 1].</exception>
+    public double BlendCentroidWeight
+    {
+        get => _blendCentroidWeight;
+        init => _blendCentroidWeight = value is >= 0 and <= 1 ? value : throw new ArgumentOutOfRangeException(nameof(BlendCentroidWeight), value, "BlendCentroidWeight must lie in [0, 1].");
     }
 
     /// <summary>Most L-BFGS iterations when training the head (default 500).</summary>

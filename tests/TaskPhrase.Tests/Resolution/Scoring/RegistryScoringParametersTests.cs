@@ -41,6 +41,46 @@ public class RegistryScoringParametersTests(ModelFixture fixture)
     }
 
     [Fact]
+    public async Task Resolve_RegistryK_AveragesThatManyBestPhraseCosines()
+    {
+        // Independent check: the cosines of the utterance to the task's phrases (TensorPrimitives on the same model's
+        // embeddings), sorted, the top k averaged.
+        const string utterance = "please give the fish some food";
+        string[] phrases = ["feed the fish", "give the fish their food", "put fish food in the tank"];
+        var vectors = await fixture.Embedder.GenerateAsync([utterance, .. phrases]);
+        var cosines = phrases.Select((_, i) => System.Numerics.Tensors.TensorPrimitives.CosineSimilarity(vectors[0].Vector.Span, vectors[i + 1].Vector.Span))
+            .OrderDescending().ToArray();
+        float Score(string scoring) => TaskResolver.Create(Registry(scoring), fixture.Embedder).Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        Assert.Equal(cosines[0], Score("scoring: {strategy: top-k, k: 1}"), 4);
+        Assert.Equal((cosines[0] + cosines[1]) / 2, Score("scoring: {strategy: top-k, k: 2}"), 4);
+        Assert.Equal(cosines.Average(), Score("scoring: top-k"), 4); // the default k 3 covers all three phrases
+    }
+
+    [Fact]
+    public void Resolve_RegistryCentroidWeight_MovesTheBlendBetweenBestPhraseAndCentroid()
+    {
+        const string utterance = "please give the fish some food";
+        float Score(string scoring) => TaskResolver.Create(Registry(scoring), fixture.Embedder).Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        float best = Score("scoring: best-phrase"), centroid = Score("scoring: centroid");
+        Assert.Equal(best, Score("scoring: {strategy: blend, centroid_weight: 0}"), 5);
+        Assert.Equal(centroid, Score("scoring: {strategy: blend, centroid_weight: 1}"), 5);
+        Assert.Equal(0.25f * centroid + 0.75f * best, Score("scoring: {strategy: blend, centroid_weight: 0.25}"), 5);
+        Assert.Equal(0.5f * (centroid + best), Score("scoring: blend"), 5);
+    }
+
+    [Fact]
+    public void Create_ExplicitStrategy_KeepsTheOptionsK()
+    {
+        // An explicit ResolverOptions.Scoring keeps the options' own settings, not the registry's k.
+        const string utterance = "please give the fish some food";
+        var registry = Registry("scoring: {strategy: top-k, k: 1}");
+        float fromRegistry = TaskResolver.Create(registry, fixture.Embedder).Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        float explicitK3 = TaskResolver.Create(registry, fixture.Embedder, new ResolverOptions { Scoring = ScoringStrategy.TopK, TopK = 3 })
+            .Rank(utterance, 3).Single(c => c.TaskId == "fish-food").Score;
+        Assert.NotEqual(fromRegistry, explicitK3);
+    }
+
+    [Fact]
     public async Task Resolve_ProbabilityWeight_MovesTheScoreBetweenProbabilityAndCentroidCosine()
     {
         // α = 1: the score is the head's probability; α = 0: the cosine to the task centroid, exactly what the centroid

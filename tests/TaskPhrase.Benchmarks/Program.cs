@@ -29,6 +29,9 @@ switch (args.FirstOrDefault())
     case "peers":
         PeerHarness.Run(args.Skip(1));
         return 0;
+    case "peers-js":
+        JsPeerHarness.Run(args.Skip(1));
+        return 0;
     case "search":
         SearchHarness.Run(args.Skip(1));
         return 0;

@@ -38,8 +38,14 @@ public sealed partial class OnnxEmbedder
     /// <exception cref="InvalidDataException">A file is missing, malformed, has the wrong SHA-256, or the model's inputs/outputs do not fit; or the card marks an int8 model whose quality figures are missing or fail <see cref="Quantization.QuantizationGates"/>. The message names the file and node.</exception>
     public static OnnxEmbedder Create(string directoryOrId, OnnxEmbedderOptions? options = null)
     {
+        var (directory, card) = Locate(directoryOrId);
+        return CreateCore(directory, card, options ?? new OnnxEmbedderOptions());
+    }
+
+    /// <summary>The model directory of a directory or built-in id, with its card, its files checked to exist.</summary>
+    private static (string Directory, ModelCard Card) Locate(string directoryOrId)
+    {
         ArgumentException.ThrowIfNullOrEmpty(directoryOrId);
-        options ??= new OnnxEmbedderOptions();
         string directory = !Directory.Exists(directoryOrId) && BuiltInModels.Ids.Contains(directoryOrId)
             ? BuiltInModels.Locate(directoryOrId)
             : directoryOrId;
@@ -49,18 +55,90 @@ public sealed partial class OnnxEmbedder
         string vocabPath = Path.Combine(directory, "vocab.txt");
         foreach (var required in new[] { modelPath, vocabPath })
             if (!File.Exists(required)) throw new InvalidDataException($"{required}: missing. A model directory needs model.onnx, vocab.txt and model.json.");
-        var card = ModelCard.Load(Path.Combine(directory, "model.json"));
-        return CreateCore(directory, card, options);
+        return (directory, ModelCard.Load(Path.Combine(directory, "model.json")));
     }
 
     /// <summary>Loads a model directory with an already validated card (the quantiser uses it before the card is written).</summary>
     internal static OnnxEmbedder CreateCore(string directory, ModelCard card, OnnxEmbedderOptions options)
     {
+        OptimizedModel.Opened? opened = null;
+        string note = "turned off (OnnxEmbedderOptions.UseOptimizedModel)";
+        if (options.UseOptimizedModel) opened = OptimizedModel.TryOpen(directory, card, out note);
+        return CreateCore(directory, card, options, opened, note);
+    }
+
+    /// <summary>
+    /// Loads a model directory, from its pre-optimised file when <paramref name="opened"/> is given (falling back to
+    /// model.onnx when that file's bytes do not match its record or ONNX Runtime refuses it), else from model.onnx.
+    /// </summary>
+    internal static OnnxEmbedder CreateCore(string directory, ModelCard card, OnnxEmbedderOptions options, OptimizedModel.Opened? opened, string note = "")
+    {
         string modelPath = Path.Combine(directory, "model.onnx");
         string vocabPath = Path.Combine(directory, "vocab.txt");
-        // Hash the model and read the vocabulary beside session creation (the longest step of a cold start).
-        var hashing = Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); });
+        // Hash the model (or the pre-optimised file, whose record carries the source's hash) and read the vocabulary
+        // beside session creation (the longest step of a cold start).
+        var hashing = opened is null
+            ? Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); })
+            : Task.Run(() => Convert.ToHexStringLower(SHA256.HashData(opened.Bytes)));
         var tokenizing = Task.Run(() => new WordPieceTokenizer(vocabPath, card.Lowercase));
+        InferenceSession session;
+        using (var sessionOptions = SessionOptionsFor(card, options))
+        {
+            try
+            {
+                if (opened is null) session = new InferenceSession(modelPath, sessionOptions);
+                else
+                {
+                    OptimizedModel.UseBytesInPlace(sessionOptions);
+                    session = new InferenceSession(opened.Bytes, sessionOptions);
+                }
+            }
+            catch (OnnxRuntimeException e) when (opened is not null)
+            {
+                tokenizing.GetAwaiter().GetResult();
+                return CreateCore(directory, card, options, null, $"ONNX Runtime refused {OptimizedModel.FileName} ({e.Message})");
+            }
+            catch (Exception e)
+            {
+                // A broken vocabulary is reported before a broken model, as when they were read one after the other.
+                tokenizing.GetAwaiter().GetResult();
+                if (e is OnnxRuntimeException) throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e);
+                throw;
+            }
+        }
+
+        try
+        {
+            var tokenizer = tokenizing.GetAwaiter().GetResult();
+            var (outputName, needsTypes) = CheckContract(session, modelPath, card);
+            string sha = hashing.GetAwaiter().GetResult();
+            if (opened is not null)
+            {
+                if (!string.Equals(sha, opened.Record.Sha256, StringComparison.OrdinalIgnoreCase))
+                {
+                    session.Dispose();
+                    return CreateCore(directory, card, options, null, $"{OptimizedModel.FileName} has SHA-256 {sha}, its record says {opened.Record.Sha256}");
+                }
+                sha = opened.Record.SourceSha256;
+            }
+            if (options.VerifyModelHash && card.ModelSha256 is { Length: > 0 } expected && !string.Equals(expected, sha, StringComparison.OrdinalIgnoreCase))
+                throw new InvalidDataException($"{modelPath}: SHA-256 is {sha} but the model card records {expected}. The file was changed or corrupted; restore it (rebuild extracts the built-in models again).");
+            return new OnnxEmbedder(directory, card, options, session, tokenizer, outputName, needsTypes, sha)
+            {
+                _modelBytes = opened?.Bytes,
+                OptimizedModelNote = opened is null ? note : "",
+            };
+        }
+        catch
+        {
+            session.Dispose();
+            throw;
+        }
+    }
+
+    /// <summary>The session settings every load uses (and <see cref="OptimizedModel.Write"/> saves the graph with).</summary>
+    internal static SessionOptions SessionOptionsFor(ModelCard card, OnnxEmbedderOptions options)
+    {
         var sessionOptions = new SessionOptions
         {
             GraphOptimizationLevel = GraphOptimizationLevel.ORT_ENABLE_ALL,
@@ -72,34 +150,24 @@ public sealed partial class OnnxEmbedder
         // Without VNNI, x64 int8 kernels can saturate the u8×s8 pair products; this setting avoids that. With VNNI it
         // only costs speed (measured about half), so it is set only where VNNI is missing.
         if (card.IsQuantized && NeedsX64QuantPrecision) sessionOptions.AddSessionConfigEntry("session.x64quantprecision", "1");
-        InferenceSession session;
-        try
-        {
-            session = new InferenceSession(modelPath, sessionOptions);
-        }
-        catch (Exception e)
-        {
-            // A broken vocabulary is reported before a broken model, as when they were read one after the other.
-            tokenizing.GetAwaiter().GetResult();
-            if (e is OnnxRuntimeException) throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e);
-            throw;
-        }
-        finally { sessionOptions.Dispose(); }
+        return sessionOptions;
+    }
 
-        try
-        {
-            var tokenizer = tokenizing.GetAwaiter().GetResult();
-            var (outputName, needsTypes) = CheckContract(session, modelPath, card);
-            string sha = hashing.GetAwaiter().GetResult();
-            if (options.VerifyModelHash && card.ModelSha256 is { Length: > 0 } expected && !string.Equals(expected, sha, StringComparison.OrdinalIgnoreCase))
-                throw new InvalidDataException($"{modelPath}: SHA-256 is {sha} but the model card records {expected}. The file was changed or corrupted; restore it (rebuild extracts the built-in models again).");
-            return new OnnxEmbedder(directory, card, options, session, tokenizer, outputName, needsTypes, sha);
-        }
-        catch
-        {
-            session.Dispose();
-            throw;
-        }
+    /// <summary>
+    /// Writes the pre-optimised form of a model directory (<c>model.ort</c> and its record <c>model.ort.json</c>) so
+    /// that later loads skip ONNX Runtime's graph optimisation (a shorter cold start; the embeddings are the same bit
+    /// for bit, which this checks before keeping the file). The file is valid only for this ONNX Runtime version and
+    /// this CPU's instruction-set extensions; elsewhere loads ignore it and use model.onnx.
+    /// </summary>
+    /// <param name="directoryOrId">A model directory or built-in id; it must be writable.</param>
+    /// <param name="options">Runtime settings (thread counts do not matter); null for the defaults.</param>
+    /// <exception cref="DirectoryNotFoundException">The directory (or built-in model) does not exist.</exception>
+    /// <exception cref="InvalidDataException">The model does not load, or the optimised file's embeddings differ from the source's (nothing is written).</exception>
+    /// <exception cref="UnauthorizedAccessException">The directory is not writable.</exception>
+    public static OptimizedModelReport PrepareOptimizedModel(string directoryOrId, OnnxEmbedderOptions? options = null)
+    {
+        var (directory, card) = Locate(directoryOrId);
+        return OptimizedModel.Write(directory, card, options ?? new OnnxEmbedderOptions());
     }
 
     /// <summary>True on x64 CPUs without AVX-VNNI or AVX-512 VNNI (the int8 dot-product instructions).</summary>

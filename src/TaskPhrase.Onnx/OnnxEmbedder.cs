@@ -26,12 +26,23 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     private readonly EmbeddingGeneratorMetadata _metadata;
     private readonly ReaderWriterLockSlim _lifetime = new(LockRecursionPolicy.SupportsRecursion);
     private bool _disposed;
+    // The pre-optimised model's bytes when the session reads them in place (pinned; kept for the session's lifetime).
+    private byte[]? _modelBytes;
 
     /// <summary>Identity of the loaded model (id, SHA-256 of model.onnx, dimensions, token limit, pooling).</summary>
     public EmbeddingModelInfo Model { get; }
 
     /// <summary>The tokenizer (the quantiser feeds its calibration copy of the model with it).</summary>
     internal WordPieceTokenizer Tokenizer => _tokenizer;
+
+    /// <summary>
+    /// Whether the session was created from the directory's pre-optimised file (<c>model.ort</c>, written by
+    /// <see cref="PrepareOptimizedModel"/>) rather than from model.onnx; the embeddings are the same either way.
+    /// </summary>
+    public bool UsesOptimizedModel => _modelBytes is not null;
+
+    /// <summary>Why the pre-optimised file was not used (missing, stale, made for another runtime or CPU, …); empty when it was.</summary>
+    public string OptimizedModelNote { get; private init; } = "";
 
     /// <summary>The model directory this embedder was loaded from.</summary>
     public string ModelDirectory { get; }
@@ -175,6 +186,7 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
             _disposed = true;
             DisposeScratch();
             _session.Dispose();
+            GC.KeepAlive(_modelBytes); // the session read them in place until here
         }
         finally { _lifetime.ExitWriteLock(); }
     }

@@ -49,4 +49,14 @@ public sealed class OnnxEmbedderOptions
 
     /// <summary>Check model.onnx against the SHA-256 in the model card at load (default true; hashing runs beside session creation).</summary>
     public bool VerifyModelHash { get; set; } = true;
+
+    /// <summary>
+    /// Create the session from the model directory's pre-optimised file (<c>model.ort</c>, see
+    /// <see cref="OnnxEmbedder.PrepareOptimizedModel"/>) when it is there and valid for this model, ONNX Runtime and
+    /// CPU (default true; the embeddings are bit-identical, only start-up is shorter). Otherwise model.onnx is used.
+    /// </summary>
+    public bool UseOptimizedModel { get; set; } = true;
+
+    /// <summary>A copy with the same settings.</summary>
+    internal OnnxEmbedderOptions Clone() => (OnnxEmbedderOptions)MemberwiseClone();
 }

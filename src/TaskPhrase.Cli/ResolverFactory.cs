@@ -31,11 +31,57 @@ internal static class ResolverFactory
         return FromIndex(LoadIndex(indexPath!, model), model, options);
     }
 
-    public static TaskIndex LoadIndex(string path, ModelLease model)
+    /// <summary>
+    /// Loads the model and a resolver from <c>--registry</c> or <c>--index</c>. With an index the model loads on a
+    /// worker thread while the index is read and the resolver set up (no forward pass needs it until the first
+    /// resolve); the index is then checked against the real model. Errors come in the same order as when loading one
+    /// after the other: the model's first. The caller disposes the lease.
+    /// </summary>
+    public static (ModelLease Lease, TaskResolver Resolver) CreateWithModel(CliContext context, string? modelDirectory, string? registryPath, string? indexPath, ResolverOptions? options = null)
+    {
+        if ((registryPath is null) == (indexPath is null))
+            throw new CliException("give exactly one of --registry FILE or --index FILE.");
+        if (registryPath is not null)
+        {
+            var lease = context.Model(modelDirectory);
+            try { return (lease, Create(registryPath, null, lease, options)); }
+            catch { lease.Dispose(); throw; }
+        }
+        var loading = Task.Run(() => context.Model(modelDirectory));
+        TaskIndex? index = null;
+        TaskResolver resolver;
+        try
+        {
+            index = LoadIndex(indexPath!, expectedModel: null);
+            resolver = FromIndex(index, new DeferredEmbedder(index.Model, loading), options);
+        }
+        catch
+        {
+            // The same precedence as loading one after the other: a model error first, then a model mismatch, then
+            // whatever was wrong with the index.
+            using var failed = loading.GetAwaiter().GetResult();
+            if (index is not null) EnsureModel(index, failed);
+            throw;
+        }
+        var loaded = loading.GetAwaiter().GetResult();
+        try { EnsureModel(index, loaded); }
+        catch { loaded.Dispose(); throw; }
+        return (loaded, resolver);
+    }
+
+    private static void EnsureModel(TaskIndex index, ModelLease model)
+    {
+        try { index.EnsureModel(model.Embedder.Model); }
+        catch (IndexException e) { throw new CliException(e.Message, ExitCodes.BadInput, e); }
+    }
+
+    public static TaskIndex LoadIndex(string path, ModelLease model) => LoadIndex(path, model.Embedder.Model);
+
+    private static TaskIndex LoadIndex(string path, TaskPhrase.Embedding.EmbeddingModelInfo? expectedModel)
     {
         try
         {
-            return TaskIndex.Load(path, model.Embedder.Model);
+            return TaskIndex.Load(path, expectedModel);
         }
         catch (IndexException e)
         {
@@ -47,11 +93,13 @@ internal static class ResolverFactory
         }
     }
 
-    public static TaskResolver FromIndex(TaskIndex index, ModelLease model, ResolverOptions? options)
+    public static TaskResolver FromIndex(TaskIndex index, ModelLease model, ResolverOptions? options) => FromIndex(index, model.Embedder, options);
+
+    private static TaskResolver FromIndex(TaskIndex index, Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> generator, ResolverOptions? options)
     {
         try
         {
-            return TaskResolver.FromIndex(index, model.Embedder, options);
+            return TaskResolver.FromIndex(index, generator, options);
         }
         catch (InvalidOperationException e)
         {

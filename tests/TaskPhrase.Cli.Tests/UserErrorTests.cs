@@ -115,6 +115,10 @@ public sealed class UserErrorTests(CliModelFixture fixture) : IDisposable
         { "missing model dir", "resolve --registry {small} --model {dir}/no-model water", 2, 1, "does not exist" },
         { "model dir without files", "resolve --registry {small} --model {empty-model} water", 2, 1, "missing" },
         { "corrupt model file", "resolve --registry {small} --model {junk-model} water", 2, 1, "model.onnx" },
+        // With --index the model loads beside the index; its errors still come first, and alone.
+        { "missing model dir, index", "resolve --index {index} --model {dir}/no-model water", 2, 1, "does not exist" },
+        { "corrupt model file, index", "resolve --index {index} --model {junk-model} water", 2, 1, "model.onnx" },
+        { "corrupt model file and tampered index", "resolve --index {tampered} --model {junk-model} water", 2, 1, "model.onnx" },
         { "missing input file", "resolve --registry {small} --input {dir}/none.txt", 2, 1, "none.txt" },
         { "missing FiLM file", "resolve --registry {small} --film {dir}/none.safetensors water", 2, 1, "none.safetensors" },
         { "bad FiLM file", "resolve --registry {small} --film {data}/safetensors/bad-json.safetensors water", 2, 1, "bad-json.safetensors" },

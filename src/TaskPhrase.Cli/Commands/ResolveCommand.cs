@@ -31,8 +31,8 @@ internal static class ResolveCommand
             bool asJson = parse.GetValue(json);
             if (given.Count == 0 && inputPath is null && !context.Interactive)
                 throw new CliException("resolve: give utterances as arguments, --input FILE (- for standard input), or run it on a terminal for a prompt.");
-            using var lease = context.Model(parse.GetValue(model));
-            var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
+            var (lease, resolver) = ResolverFactory.CreateWithModel(context, parse.GetValue(model), parse.GetValue(registry), parse.GetValue(index));
+            using var _ = lease;
             if (parse.GetValue(film) is { } filmPath) FilmSupport.Attach(filmPath, resolver);
 
             if (given.Count > 0 || inputPath is not null)
@@ -68,18 +68,30 @@ internal static class ResolveCommand
             context.Out.WriteLine(ResolutionJson.ToJson(r));
             return;
         }
-        var console = context.Console();
-        string color = r.Outcome switch { ResolutionOutcome.Accepted => "green", ResolutionOutcome.Ambiguous => "yellow", _ => "red" };
         string score = r.Score is { } s ? $"{s:0.000}" : "-";
         string margin = r.Margin is { } m ? $"{m:0.000}" : "-";
-        string what = r.Outcome == ResolutionOutcome.Accepted
-            ? $"{r.Task!.Id} ({r.Task.Controller.Manifold}, {r.Task.Controller.LatentDims} axes){(r.Confirm ? " [bold]CONFIRM FIRST[/]" : "")}"
+        string outcome = ResolutionJson.Name(r.Outcome);
+        string utterance = Printable(r.Utterance);
+        string target = r.Outcome == ResolutionOutcome.Accepted
+            ? $"{r.Task!.Id} ({r.Task.Controller.Manifold}, {r.Task.Controller.LatentDims} axes)"
             : $"{ResolutionJson.Name(r.Reason)}{(r.Task is null ? "" : $"; nearest {r.Task.Id}")}";
-        console.MarkupLine($"[{color}]{ResolutionJson.Name(r.Outcome)}[/] {Markup.Escape(Printable(r.Utterance))} → {what}  [grey]score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}[/]");
-        if (r.Detail is { } detail && r.Outcome != ResolutionOutcome.Accepted)
-            console.MarkupLine($"  [grey]{Markup.Escape(detail)}[/]");
-        else if (r.Outcome == ResolutionOutcome.Accepted && r.Corrections.Count > 0)
-            console.MarkupLine($"  [grey]corrected: {Markup.Escape(Printable(string.Join("; ", r.Corrections)))}[/]");
+        string tail = $"score {score} margin {margin}{(r.Truncated ? " TRUNCATED" : "")}";
+        string? note = r.Detail is { } detail && r.Outcome != ResolutionOutcome.Accepted ? detail
+            : r.Outcome == ResolutionOutcome.Accepted && r.Corrections.Count > 0 ? $"corrected: {Printable(string.Join("; ", r.Corrections))}"
+            : null;
+        if (!context.Interactive)
+        {
+            // Redirected output has no colour: plain text, the same words, without setting up a console renderer
+            // (about a tenth of a cold start's time).
+            context.Out.WriteLine($"{outcome} {utterance} → {target}{(r.Confirm && r.Outcome == ResolutionOutcome.Accepted ? " CONFIRM FIRST" : "")}  {tail}");
+            if (note is not null) context.Out.WriteLine($"  {note}");
+            return;
+        }
+        var console = context.Console();
+        string color = r.Outcome switch { ResolutionOutcome.Accepted => "green", ResolutionOutcome.Ambiguous => "yellow", _ => "red" };
+        string confirm = r.Confirm && r.Outcome == ResolutionOutcome.Accepted ? " [bold]CONFIRM FIRST[/]" : "";
+        console.MarkupLine($"[{color}]{outcome}[/] {Markup.Escape(utterance)} → {Markup.Escape(target)}{confirm}  [grey]{Markup.Escape(tail)}[/]");
+        if (note is not null) console.MarkupLine($"  [grey]{Markup.Escape(note)}[/]");
     }
 
     /// <summary>

@@ -42,15 +42,27 @@ public sealed partial class TaskIndex
             throw new IndexException(IndexErrorKind.RegistryMismatch, path,
                 $"Index {path} was built from registry {index.RegistryHash}, but registry {expectedRegistryHash.ToLowerInvariant()} is in use; {Rebuild} from the current registry.");
         }
-        if (expectedModel is not null
-            && (!string.Equals(index.Model.Id, expectedModel.Id, StringComparison.Ordinal)
-                || !string.Equals(index.Model.Sha256, expectedModel.Sha256, StringComparison.OrdinalIgnoreCase)
-                || index.Model.Dimensions != expectedModel.Dimensions))
-        {
-            throw new IndexException(IndexErrorKind.ModelMismatch, path,
-                $"Index {path} was built with model {index.Model.Id} (SHA-256 {index.Model.Sha256}, {index.Model.Dimensions} dimensions), but the model in use is {expectedModel.Id} (SHA-256 {expectedModel.Sha256.ToLowerInvariant()}, {expectedModel.Dimensions} dimensions); {Rebuild} with this model, or use the model it was built with.");
-        }
+        if (expectedModel is not null) index.EnsureModel(expectedModel);
         return index;
+    }
+
+    /// <summary>
+    /// Checks that this index was built with <paramref name="model"/> (same id, SHA-256 and dimensions), as
+    /// <see cref="Load(string, EmbeddingModelInfo?)"/> does when given the model; for callers that load the index
+    /// before the model is ready.
+    /// </summary>
+    /// <exception cref="IndexException">The models differ (<see cref="IndexErrorKind.ModelMismatch"/>).</exception>
+    public void EnsureModel(EmbeddingModelInfo model)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        if (!string.Equals(Model.Id, model.Id, StringComparison.Ordinal)
+            || !string.Equals(Model.Sha256, model.Sha256, StringComparison.OrdinalIgnoreCase)
+            || Model.Dimensions != model.Dimensions)
+        {
+            string path = SourcePath ?? "(index in memory)";
+            throw new IndexException(IndexErrorKind.ModelMismatch, path,
+                $"Index {path} was built with model {Model.Id} (SHA-256 {Model.Sha256}, {Model.Dimensions} dimensions), but the model in use is {model.Id} (SHA-256 {model.Sha256.ToLowerInvariant()}, {model.Dimensions} dimensions); {Rebuild} with this model, or use the model it was built with.");
+        }
     }
 
     private static byte[] ReadFile(string path)

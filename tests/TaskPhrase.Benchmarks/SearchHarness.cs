@@ -9,6 +9,10 @@ namespace TaskPhrase.Benchmarks;
 /// from other tenants lands on all alike: <see cref="TaskResolver.Rank"/> under each strategy against a textbook
 /// brute-force scan (one dot product per phrase row, best row per task). Reports medians, p99 and managed bytes
 /// allocated per call. <c>--sizes 1000,10000,100000 --rounds N</c>.
+/// <c>--real</c> (or <c>--clinc150 FILE</c>) uses real embeddings instead (all-MiniLM-L6-v2 of CLINC150, Larson et al., 2019): phrases
+/// are training queries, ten consecutive queries of one intent per task (1,000 phrases: the first ten of 100 intents;
+/// more: each intent's queries in groups of ten, up to 15,000), and each round's query is the next of 300 validation
+/// queries. The embeddings are computed once and kept in the scratch folder.
 /// </summary>
 internal static class SearchHarness
 {
@@ -17,8 +21,10 @@ internal static class SearchHarness
 
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "sizes", "rounds");
-        var sizes = a.Ints("sizes", 1_000, 10_000, 100_000);
+        var a = new HarnessArguments(args, "sizes", "rounds", "real", "clinc150");
+        bool real = a.Flag("real") || a.Flag("clinc150");
+        var sizes = real ? a.Ints("sizes", 1_000, 10_000) : a.Ints("sizes", 1_000, 10_000, 100_000);
+        var clinc = real ? RealEmbeddings.Load(a.Flag("clinc150") ? a.Text("clinc150", "") : "") : null;
         int requested = a.Int("rounds", 0);
         var strategies = new[] { ScoringStrategy.Centroid, ScoringStrategy.BestPhrase, ScoringStrategy.Blend, ScoringStrategy.Whitened };
         Console.WriteLine($"search: {Dimensions} dimensions, {PhrasesPerTask} phrases per task, {Environment.ProcessorCount} logical CPUs, load average {LoadAverage()}");
@@ -27,9 +33,13 @@ internal static class SearchHarness
             int rounds = requested > 0 ? requested : phrases >= 100_000 ? 60 : phrases >= 10_000 ? 300 : 2000;
             var random = new Random(20240611);
             var matrix = new float[phrases * Dimensions];
-            for (int r = 0; r < phrases; r++) HashedEmbeddingGenerator.Fill(random, matrix.AsSpan(r * Dimensions, Dimensions));
             var query = new float[Dimensions];
-            HashedEmbeddingGenerator.Fill(random, query);
+            if (clinc is null)
+            {
+                for (int r = 0; r < phrases; r++) HashedEmbeddingGenerator.Fill(random, matrix.AsSpan(r * Dimensions, Dimensions));
+                HashedEmbeddingGenerator.Fill(random, query);
+            }
+            else clinc.Phrases(phrases, PhrasesPerTask).CopyTo(matrix);
             var sims = new float[phrases];
             var best = new float[phrases / PhrasesPerTask];
             var registry = SyntheticRegistry.Direct(phrases / PhrasesPerTask, PhrasesPerTask);
@@ -60,6 +70,7 @@ internal static class SearchHarness
             int[] order = Enumerable.Range(0, ops.Count).ToArray();
             for (int i = 0; i < rounds; i++)
             {
+                clinc?.Query(i).CopyTo(query);
                 random.Shuffle(order);
                 foreach (int k in order)
                 {
@@ -69,7 +80,7 @@ internal static class SearchHarness
                 }
             }
             Console.WriteLine();
-            Console.WriteLine($"{phrases:N0} phrases ({phrases / PhrasesPerTask:N0} tasks), {rounds} rounds");
+            Console.WriteLine($"{phrases:N0} phrases ({phrases / PhrasesPerTask:N0} tasks), {rounds} rounds{(clinc is null ? ", random unit vectors" : ", CLINC150 embeddings")}");
             Console.WriteLine(Samples.Header + " allocated |");
             for (int k = 0; k < ops.Count; k++) Console.WriteLine($"{samples[k].Row()} {allocated[k] / rounds} B |");
         }

@@ -253,7 +253,7 @@ public sealed partial class TaskResolver
             for (int t = 0; t < state.TaskCount; t++)
             {
                 if (t == best || !state.Anchors[t].GetAlternateLookup<ReadOnlySpan<char>>().Contains(stem)) continue;
-                if (rows[t] == NotScored) scores[t] = ExactBest(state, vector, t, out rows[t]);
+                if (rows[t] == NotScored) scores[t] = ExactScore(state, vector, t, out rows[t]);
                 if (scores[t] >= scores[best] - AnchorCompetitorGap) return (w, state.Registry.Tasks[t].Id);
             }
         }

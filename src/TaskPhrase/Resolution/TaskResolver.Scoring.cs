@@ -118,7 +118,7 @@ public sealed partial class TaskResolver
     }
 
     /// <summary>
-    /// Best-phrase scoring through the 8-bit screen: bounds every task's best score, then scores exactly (same
+    /// Best-phrase (and blend) scoring through the 8-bit screen: bounds every task's score, then scores exactly (same
     /// arithmetic as <see cref="ScanPhrases"/>) every task whose upper bound reaches the <paramref name="count"/>-th
     /// largest lower bound. The <paramref name="count"/> best tasks are among those, so candidates, order and scores
     /// are exactly those of the full scan. Every other task's exact score is below all of them; it gets the largest
@@ -127,21 +127,34 @@ public sealed partial class TaskResolver
     /// </summary>
     private static bool Screened(ResolverState state, PhraseScreen screen, ReadOnlySpan<float> vector, int count, Span<float> scores, Span<int> rows)
     {
-        int taskCount = state.TaskCount;
+        int taskCount = state.TaskCount, dims = state.Dimensions;
         count = Math.Clamp(count, 1, taskCount);
+        bool blend = state.Scoring == ScoringStrategy.Blend;
+        double w = state.BlendCentroidWeight;
         double[] lowerArray = ArrayPool<double>.Shared.Rent(taskCount), upperArray = ArrayPool<double>.Shared.Rent(taskCount);
         try
         {
             var lower = lowerArray.AsSpan(0, taskCount);
             var upper = upperArray.AsSpan(0, taskCount);
             if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
+            if (blend)
+            {
+                // Blend = w·c + (1 − w)·best with c the exact centroid cosine: the best-phrase bounds carry over, widened by
+                // 10⁻⁶ for the float rounding of the two products and their sum (at most a few 10⁻⁸ here).
+                for (int t = 0; t < taskCount; t++)
+                {
+                    double c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(t * dims, dims));
+                    lower[t] = w * c + (1 - w) * lower[t] - 1e-6;
+                    upper[t] = w * c + (1 - w) * upper[t] + 1e-6;
+                }
+            }
             double threshold = KthLargest(lower, count);
             if (!double.IsFinite(threshold)) return false;
             for (int t = 0; t < taskCount; t++)
             {
                 if (upper[t] >= threshold)
                 {
-                    scores[t] = ExactBest(state, vector, t, out rows[t]);
+                    scores[t] = ExactScore(state, vector, t, out rows[t]);
                     continue;
                 }
                 float bound = (float)upper[t];
@@ -155,6 +168,18 @@ public sealed partial class TaskResolver
             ArrayPool<double>.Shared.Return(lowerArray);
             ArrayPool<double>.Shared.Return(upperArray);
         }
+    }
+
+    /// <summary>
+    /// Task <paramref name="task"/>'s exact score under a screened strategy (best phrase, or blend) and its nearest row,
+    /// with the same arithmetic as the full scan in <see cref="ScoreTasks"/>.
+    /// </summary>
+    private static float ExactScore(ResolverState state, ReadOnlySpan<float> vector, int task, out int row)
+    {
+        float best = ExactBest(state, vector, task, out row);
+        if (state.Scoring != ScoringStrategy.Blend) return best;
+        float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(task * state.Dimensions, state.Dimensions));
+        return state.BlendCentroidWeight * c + (1 - state.BlendCentroidWeight) * best;
     }
 
     /// <summary>The <paramref name="k"/>-th largest value (1-based), in one pass keeping the k largest.</summary>

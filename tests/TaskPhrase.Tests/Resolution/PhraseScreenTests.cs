@@ -67,14 +67,37 @@ public class PhraseScreenTests
         }
     }
 
+    [Fact]
+    public void DotShiftedVnni_RandomVectors_EqualsPlainLoopAfterUndoingTheShift()
+    {
+        // The VNNI path (u8 × s8, the query shifted by +128) must give the same integer as the plain loop, including the
+        // extremes −127 and 127; machines without AVX-VNNI use DotInt8 (checked above), so only the shift algebra runs.
+        var random = new Random(3);
+        foreach (int n in new[] { 32, 64, 96, 384, 1024 })
+        {
+            var q = Enumerable.Range(0, n).Select(i => (sbyte)(i % 7 == 0 ? -127 : i % 11 == 0 ? 127 : random.Next(-127, 128))).ToArray();
+            var p = Enumerable.Range(0, n).Select(i => (short)(i % 5 == 0 ? 127 : i % 13 == 0 ? -127 : random.Next(-127, 128))).ToArray();
+            int expected = 0, qSum = 0;
+            for (int i = 0; i < n; i++) { expected += q[i] * p[i]; qSum += q[i]; }
+            var shifted = p.Select(x => (byte)(x + 128)).ToArray();
+            int unshifted = 0;
+            for (int i = 0; i < n; i++) unshifted += shifted[i] * q[i];
+            Assert.Equal(expected, unshifted - 128 * qSum);
+            if (System.Runtime.Intrinsics.X86.AvxVnni.IsSupported)
+                Assert.Equal(expected, PhraseScreen.DotShiftedVnni(shifted, q) - 128 * qSum);
+        }
+    }
+
     /// <summary>
     /// 70 tasks of 10 phrases ("verb the object"); utterances name one task's object and another's, embedded between
     /// the two, so the anchor rule must judge a competitor that is often outside the shown candidates.
     /// </summary>
     [Theory]
-    [InlineData(1)]
-    [InlineData(5)]
-    public void Resolve_WithScreen_EqualsFullScan(int candidates)
+    [InlineData(ScoringStrategy.BestPhrase, 1)]
+    [InlineData(ScoringStrategy.BestPhrase, 5)]
+    [InlineData(ScoringStrategy.Blend, 1)]
+    [InlineData(ScoringStrategy.Blend, 5)]
+    public void Resolve_WithScreen_EqualsFullScan(ScoringStrategy strategy, int candidates)
     {
         var random = new Random(40 + candidates);
         string[] verbs = ["move", "fetch", "lift", "carry", "bring", "hold", "take", "pass", "find", "grab"];
@@ -102,7 +125,7 @@ public class PhraseScreenTests
         var registry = new TaskRegistry(tasks, RegistryDefaults.Standard, "screen-test");
         ResolverOptions Options(bool screen) => new()
         {
-            Scoring = ScoringStrategy.BestPhrase, UnintelligibleGuard = false, Candidates = candidates, AcceptOverride = 0f, PhraseScreen = screen,
+            Scoring = strategy, UnintelligibleGuard = false, Candidates = candidates, AcceptOverride = 0f, PhraseScreen = screen,
         };
         var screened = TaskResolver.Create(registry, generator, Options(true));
         var full = TaskResolver.Create(registry, generator, Options(false));

@@ -26,7 +26,7 @@ internal static class SearchHarness
         var sizes = real ? a.Ints("sizes", 1_000, 10_000) : a.Ints("sizes", 1_000, 10_000, 100_000);
         var clinc = real ? RealEmbeddings.Load(a.Flag("clinc150") ? a.Text("clinc150", "") : "") : null;
         int requested = a.Int("rounds", 0);
-        var strategies = new[] { ScoringStrategy.Centroid, ScoringStrategy.BestPhrase, ScoringStrategy.Blend, ScoringStrategy.Whitened };
+        var strategies = new[] { ScoringStrategy.Centroid, ScoringStrategy.BestPhrase, ScoringStrategy.Blend, ScoringStrategy.TopK, ScoringStrategy.Whitened };
         Console.WriteLine($"search: {Dimensions} dimensions, {PhrasesPerTask} phrases per task, {Environment.ProcessorCount} logical CPUs, load average {LoadAverage()}");
         foreach (int phrases in sizes)
         {

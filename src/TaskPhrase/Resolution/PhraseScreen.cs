@@ -83,6 +83,21 @@ internal sealed class PhraseScreen
     /// </summary>
     public bool Bounds(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
     {
+        lower.Fill(double.NegativeInfinity);
+        upper.Fill(double.NegativeInfinity);
+        return Scan(vector, phraseTask, lower, upper, default, default);
+    }
+
+    /// <summary>
+    /// Per row, the approximate score and its bound: the exact score of row r lies within
+    /// <paramref name="approx"/>[r] ± <paramref name="bound"/>[r]. False (bounds unusable) when the query is not finite.
+    /// </summary>
+    public bool RowBounds(ReadOnlySpan<float> vector, Span<double> approx, Span<double> bound)
+        => Scan(vector, default, default, default, approx, bound);
+
+    /// <summary>Quantises the query, then per row either folds the bounds into the task maxima or writes them out.</summary>
+    private bool Scan(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper, Span<double> rowApprox, Span<double> rowBound)
+    {
         int dims = Dimensions;
         Span<short> p = dims <= 2048 ? stackalloc short[dims] : new short[dims];
         Span<byte> shifted = dims <= 2048 ? stackalloc byte[dims] : new byte[dims];
@@ -103,9 +118,7 @@ internal sealed class PhraseScreen
             ff += f * f;
         }
         double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
-        lower.Fill(double.NegativeInfinity);
-        upper.Fill(double.NegativeInfinity);
-        bool vnni = AvxVnni.IsSupported && dims % 32 == 0;
+        bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
         for (int r = 0; r < Rows; r++)
         {
             var row = _q.AsSpan(r * dims, dims);
@@ -113,6 +126,12 @@ internal sealed class PhraseScreen
             int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
+            if (perRow)
+            {
+                rowApprox[r] = approx;
+                rowBound[r] = bound;
+                continue;
+            }
             int t = phraseTask[r];
             if (approx + bound > upper[t]) upper[t] = approx + bound;
             if (approx - bound > lower[t]) lower[t] = approx - bound;

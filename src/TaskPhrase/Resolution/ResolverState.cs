@@ -156,7 +156,7 @@ internal sealed record ResolverState
             Words = allWords.ToHashSet(StringComparer.Ordinal),
             WordList = allWords,
             Hazards = HazardLexicon.BuiltIn.With(settings.HazardWords, settings.AllowWords),
-            Screen = (scoring is ScoringStrategy.BestPhrase or ScoringStrategy.Blend) && phraseCount >= PhraseScreen.MinRows ? PhraseScreen.Build(phrases, dims) : null,
+            Screen = (scoring is ScoringStrategy.BestPhrase or ScoringStrategy.Blend or ScoringStrategy.TopK) && phraseCount >= PhraseScreen.MinRows ? PhraseScreen.Build(phrases, dims) : null,
             BlendCentroidWeight = (float)(learned ?? LearnedScoringOptions.Default).BlendCentroidWeight,
             Whitening = scoring == ScoringStrategy.Whitened ? Whitening.Fit(phrases, phraseTask, tasks.Count, dims, learned) : null,
             Head = scoring != ScoringStrategy.Head ? null

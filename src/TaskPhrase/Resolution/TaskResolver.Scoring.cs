@@ -136,7 +136,11 @@ public sealed partial class TaskResolver
         {
             var lower = lowerArray.AsSpan(0, taskCount);
             var upper = upperArray.AsSpan(0, taskCount);
-            if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
+            if (state.Scoring == ScoringStrategy.TopK)
+            {
+                if (!TopKBounds(state, screen, vector, lower, upper)) return false;
+            }
+            else if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
             if (blend)
             {
                 // Blend = w·c + (1 − w)·best with c the exact centroid cosine: the best-phrase bounds carry over, widened by
@@ -171,12 +175,67 @@ public sealed partial class TaskResolver
     }
 
     /// <summary>
-    /// Task <paramref name="task"/>'s exact score under a screened strategy (best phrase, or blend) and its nearest row,
-    /// with the same arithmetic as the full scan in <see cref="ScoreTasks"/>.
+    /// Top-k bounds per task from the screen's row bounds: the mean of the task's k largest row lower bounds is at most
+    /// the mean of its k best exact scores, which is at most the mean of its k largest row upper bounds (whatever rows
+    /// the exact k best are); widened by 10⁻⁶ for the float rounding of the exact mean.
+    /// </summary>
+    private static bool TopKBounds(ResolverState state, PhraseScreen screen, ReadOnlySpan<float> vector, Span<double> lower, Span<double> upper)
+    {
+        int rows = screen.Rows;
+        double[] work = ArrayPool<double>.Shared.Rent(Math.Max(1, 2 * rows));
+        try
+        {
+            var approx = work.AsSpan(0, rows);
+            var bound = work.AsSpan(rows, rows);
+            if (!screen.RowBounds(vector, approx, bound)) return false;
+            Span<double> hi = stackalloc double[Math.Min(state.TopK, MaxStackTopK)];
+            Span<double> lo = stackalloc double[hi.Length];
+            for (int t = 0; t < state.TaskCount; t++)
+            {
+                int start = state.TaskRowStart[t], end = state.TaskRowStart[t + 1];
+                int k = Math.Min(state.TopK, end - start);
+                if (k == 0) { lower[t] = upper[t] = double.NegativeInfinity; continue; }
+                if (k > hi.Length) return false; // an unusually large k: scan everything instead
+                hi[..k].Fill(double.NegativeInfinity);
+                lo[..k].Fill(double.NegativeInfinity);
+                for (int r = start; r < end; r++)
+                {
+                    InsertLargest(hi[..k], approx[r] + bound[r]);
+                    InsertLargest(lo[..k], approx[r] - bound[r]);
+                }
+                double sumHi = 0, sumLo = 0;
+                for (int i = 0; i < k; i++) { sumHi += hi[i]; sumLo += lo[i]; }
+                upper[t] = sumHi / k + 1e-6;
+                lower[t] = sumLo / k - 1e-6;
+            }
+            return true;
+        }
+        finally
+        {
+            ArrayPool<double>.Shared.Return(work);
+        }
+    }
+
+    /// <summary>Largest k through the screen; a larger top-k scans every phrase.</summary>
+    private const int MaxStackTopK = 64;
+
+    /// <summary>Keeps the <c>top.Length</c> largest values seen, in descending order.</summary>
+    private static void InsertLargest(Span<double> top, double v)
+    {
+        if (!(v > top[^1])) return;
+        int i = top.Length - 1;
+        while (i > 0 && v > top[i - 1]) { top[i] = top[i - 1]; i--; }
+        top[i] = v;
+    }
+
+    /// <summary>
+    /// Task <paramref name="task"/>'s exact score under a screened strategy (best phrase, blend or top-k) and its nearest
+    /// row, with the same arithmetic as the full scan in <see cref="ScoreTasks"/>.
     /// </summary>
     private static float ExactScore(ResolverState state, ReadOnlySpan<float> vector, int task, out int row)
     {
         float best = ExactBest(state, vector, task, out row);
+        if (state.Scoring == ScoringStrategy.TopK) return ExactTopK(state, vector, task);
         if (state.Scoring != ScoringStrategy.Blend) return best;
         float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(task * state.Dimensions, state.Dimensions));
         return state.BlendCentroidWeight * c + (1 - state.BlendCentroidWeight) * best;
@@ -195,6 +254,25 @@ public sealed partial class TaskResolver
             top[i] = v;
         }
         return top[^1];
+    }
+
+    /// <summary>One task's top-k score, exactly as <see cref="ScoreTopK"/> computes it (same dot products, sort and sum).</summary>
+    private static float ExactTopK(ResolverState state, ReadOnlySpan<float> vector, int task)
+    {
+        int start = state.TaskRowStart[task], end = state.TaskRowStart[task + 1], n = end - start, dims = state.Dimensions;
+        float[] sims = ArrayPool<float>.Shared.Rent(Math.Max(1, n));
+        try
+        {
+            var slice = sims.AsSpan(0, n);
+            for (int r = start; r < end; r++) slice[r - start] = TensorPrimitives.Dot(vector, state.Phrases.AsSpan(r * dims, dims));
+            slice.Sort();
+            int k = Math.Min(state.TopK, n);
+            return k == 0 ? float.NegativeInfinity : TensorPrimitives.Sum(slice[(n - k)..]) / k;
+        }
+        finally
+        {
+            ArrayPool<float>.Shared.Return(sims);
+        }
     }
 
     /// <summary>Top-k scoring: the mean of each task's <see cref="ResolverOptions.TopK"/> best phrase scores.</summary>

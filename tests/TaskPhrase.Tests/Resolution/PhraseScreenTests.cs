@@ -97,6 +97,8 @@ public class PhraseScreenTests
     [InlineData(ScoringStrategy.BestPhrase, 5)]
     [InlineData(ScoringStrategy.Blend, 1)]
     [InlineData(ScoringStrategy.Blend, 5)]
+    [InlineData(ScoringStrategy.TopK, 1)]
+    [InlineData(ScoringStrategy.TopK, 5)]
     public void Resolve_WithScreen_EqualsFullScan(ScoringStrategy strategy, int candidates)
     {
         var random = new Random(40 + candidates);

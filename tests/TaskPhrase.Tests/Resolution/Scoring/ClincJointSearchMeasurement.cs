@@ -26,7 +26,8 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// <item><c>probes</c>: all of them join half A as out-of-scope tuning probes (150 instead of 50); registry unchanged.</item>
 /// <item><c>split-N</c>: even rows as look-alikes (N nearest tasks), odd rows as tuning probes; no row is both.</item>
 /// </list>
-/// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does.</para>
+/// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does;
+/// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10).</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -48,7 +49,8 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
     {
         var ks = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "10").Split(',').Select(s => int.Parse(s, CultureInfo.InvariantCulture));
         var (halfA, halfB) = Halves();
-        var budgets = new TuningBudgets(0.10, 0.05);
+        double falseAcceptBudget = double.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_FA") ?? "0.10", CultureInfo.InvariantCulture);
+        var budgets = new TuningBudgets(falseAcceptBudget, 0.05);
         var table = new StringBuilder();
         string? logPath = Environment.GetEnvironmentVariable("TASKPHRASE_MEASURE_LOG");
         bool allB = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_ALL_B") == "1";
@@ -64,7 +66,7 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         foreach (int k in ks)
         {
             var (registry, tuning) = Variant(variant, ClincRegistry.Build(k), halfA);
-            string tag = variant == "base" ? $"{k}" : $"{k} {variant}";
+            string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"));
             Log($"k={tag}: {registry.Tasks.Sum(t => t.MustReject.Count)} look-alikes, tuning suite {tuning.Count} probes ({tuning.Count(p => !p.IsInScope)} out of scope)");
             var watch = Stopwatch.StartNew();
             var search = ScoringSearch.Run(registry, fixture.Embedder, tuning, budgets, grid,

@@ -85,6 +85,14 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
                 if (!allB && !bestPerStrategy.Contains(o.Candidate) && o.Candidate != search.Chosen) continue;
                 var resolver = TaskResolver.Create(o.Candidate.Apply(registry), memo);
                 var res = resolver.ResolveMany(textsB);
+                if (o.Candidate == search.Chosen)
+                {
+                    // Threshold-independent refusals of the chosen setting on the tuning suite (what look-alikes cost in scope).
+                    var onA = resolver.ResolveMany(tuning.Select(p => p.Utterance).ToList());
+                    string Guards(bool inScope) => string.Join(", ", tuning.Select((p, i) => (p, r: onA[i])).Where(x => x.p.IsInScope == inScope && x.r.Guard != RejectionReason.None)
+                        .GroupBy(x => x.r.Guard).OrderBy(g => g.Key).Select(g => $"{g.Key} {g.Count()}"));
+                    Log($"k={tag}: chosen setting's guard refusals on the tuning suite: in scope [{Guards(true)}], out of scope [{Guards(false)}]");
+                }
                 var audit = TuningMetrics.Evaluate(halfB.Select((p, i) => TaskPhrase.Evaluation.ScoredProbe.From(p, res[i])), o.Result.Rule);
                 var m = o.Result.Metrics;
                 string mark = o.Candidate == search.Chosen ? " **chosen**" : "";

@@ -16,6 +16,18 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// only to show how each one generalises: for the chosen setting and for the best-on-A setting of each strategy (all
 /// settings when <c>TASKPHRASE_CLINC_ALL_B=1</c>; each head setting on B costs a training). k from <c>TASKPHRASE_CLINC_K</c>
 /// (comma-separated, default 10); lines are also appended to the file <c>TASKPHRASE_MEASURE_LOG</c> when set.
+/// <para>Variants (<c>TASKPHRASE_CLINC_VARIANTS</c>, comma-separated, default <c>base</c>) differ in what the dataset's
+/// 100 out-of-scope training queries (<c>oos_train</c>, disjoint from validation) are used for; validation rows never
+/// enter a registry and half B never enters the choice:</para>
+/// <list type="bullet">
+/// <item><c>base</c>: not used (the documented protocol).</item>
+/// <item><c>lookalike-N</c>: all of them become <c>must_reject</c> look-alikes of the N tasks with the nearest centroid
+/// (<see cref="ClincRegistry.WithLookAlikes"/>); the head trains them as its look-alike class.</item>
+/// <item><c>probes</c>: all of them join half A as out-of-scope tuning probes (150 instead of 50); registry unchanged.</item>
+/// <item><c>split-N</c>: even rows as look-alikes (N nearest tasks), odd rows as tuning probes; no row is both.</item>
+/// </list>
+/// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does;
+/// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10).</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -37,7 +49,8 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
     {
         var ks = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "10").Split(',').Select(s => int.Parse(s, CultureInfo.InvariantCulture));
         var (halfA, halfB) = Halves();
-        var budgets = new TuningBudgets(0.10, 0.05);
+        double falseAcceptBudget = double.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_FA") ?? "0.10", CultureInfo.InvariantCulture);
+        var budgets = new TuningBudgets(falseAcceptBudget, 0.05);
         var table = new StringBuilder();
         string? logPath = Environment.GetEnvironmentVariable("TASKPHRASE_MEASURE_LOG");
         bool allB = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_ALL_B") == "1";
@@ -46,17 +59,23 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
             output.WriteLine(line);
             if (logPath is { Length: > 0 }) File.AppendAllText(logPath, line + Environment.NewLine);
         }
+        var variants = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_VARIANTS") ?? "base").Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries);
+        string? strategies = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_STRATEGIES");
+        var grid = ScoringCandidate.DefaultGrid(strategies is { Length: > 0 } ? strategies.Split(',') : null);
+        foreach (string variant in variants)
         foreach (int k in ks)
         {
-            var registry = ClincRegistry.Build(k);
+            var (registry, tuning) = Variant(variant, ClincRegistry.Build(k), halfA);
+            string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"));
+            Log($"k={tag}: {registry.Tasks.Sum(t => t.MustReject.Count)} look-alikes, tuning suite {tuning.Count} probes ({tuning.Count(p => !p.IsInScope)} out of scope)");
             var watch = Stopwatch.StartNew();
-            var search = ScoringSearch.Run(registry, fixture.Embedder, halfA, budgets, ScoringCandidate.DefaultGrid(),
+            var search = ScoringSearch.Run(registry, fixture.Embedder, tuning, budgets, grid,
                 progress: p =>
                 {
-                    if (p.Result is null) Log($"k={k} [{p.Index + 1}/{p.Count}] {p.Candidate.Label} at {watch.Elapsed.TotalSeconds:0} s");
-                    else Log(string.Create(CultureInfo.InvariantCulture, $"k={k}   A: {100 * p.Result.Metrics.InScopeAccuracy.Value:0.0} % / {100 * p.Result.Metrics.WrongTaskRate.Value:0.0} % / {100 * p.Result.Metrics.FalseAcceptRate.Value:0.0} %{(p.Result.Feasible ? "" : " (infeasible)")}"));
+                    if (p.Result is null) Log($"k={tag} [{p.Index + 1}/{p.Count}] {p.Candidate.Label} at {watch.Elapsed.TotalSeconds:0} s");
+                    else Log(string.Create(CultureInfo.InvariantCulture, $"k={tag}   A: {100 * p.Result.Metrics.InScopeAccuracy.Value:0.0} % / {100 * p.Result.Metrics.WrongTaskRate.Value:0.0} % / {100 * p.Result.Metrics.FalseAcceptRate.Value:0.0} %{(p.Result.Feasible ? "" : " (infeasible)")}"));
                 });
-            Log($"k={k}: search took {watch.Elapsed.TotalSeconds:0} s");
+            Log($"k={tag}: search took {watch.Elapsed.TotalSeconds:0} s");
             var bestPerStrategy = search.Outcomes.GroupBy(o => o.Candidate.Strategy)
                 .Select(g => g.Aggregate((x, y) => ScoringSearch.IsBetter(y.Result, x.Result) ? y : x).Candidate).ToHashSet();
             var memo = new MemoizingEmbeddingGenerator(fixture.Embedder);
@@ -66,11 +85,19 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
                 if (!allB && !bestPerStrategy.Contains(o.Candidate) && o.Candidate != search.Chosen) continue;
                 var resolver = TaskResolver.Create(o.Candidate.Apply(registry), memo);
                 var res = resolver.ResolveMany(textsB);
+                if (o.Candidate == search.Chosen)
+                {
+                    // Threshold-independent refusals of the chosen setting on the tuning suite (what look-alikes cost in scope).
+                    var onA = resolver.ResolveMany(tuning.Select(p => p.Utterance).ToList());
+                    string Guards(bool inScope) => string.Join(", ", tuning.Select((p, i) => (p, r: onA[i])).Where(x => x.p.IsInScope == inScope && x.r.Guard != RejectionReason.None)
+                        .GroupBy(x => x.r.Guard).OrderBy(g => g.Key).Select(g => $"{g.Key} {g.Count()}"));
+                    Log($"k={tag}: chosen setting's guard refusals on the tuning suite: in scope [{Guards(true)}], out of scope [{Guards(false)}]");
+                }
                 var audit = TuningMetrics.Evaluate(halfB.Select((p, i) => TaskPhrase.Evaluation.ScoredProbe.From(p, res[i])), o.Result.Rule);
                 var m = o.Result.Metrics;
                 string mark = o.Candidate == search.Chosen ? " **chosen**" : "";
                 string line = string.Create(CultureInfo.InvariantCulture,
-                    $"| {k} | {o.Candidate.Label}{mark} | {o.Result.Accept:0.000} | {o.Result.Margin:0.000} | {o.Result.AcceptOverrides.Count} | {100 * m.InScopeAccuracy.Value:0.0} % / {100 * m.WrongTaskRate.Value:0.0} % / {100 * m.FalseAcceptRate.Value:0.0} %{(o.Result.Feasible ? "" : " (infeasible)")} | {Rate(audit.InScopeAccuracy)} | {Rate(audit.WrongTaskRate)} | {Rate(audit.FalseAcceptRate)} |");
+                    $"| {tag} | {o.Candidate.Label}{mark} | {o.Result.Accept:0.000} | {o.Result.Margin:0.000} | {o.Result.AcceptOverrides.Count} | {100 * m.InScopeAccuracy.Value:0.0} % / {100 * m.WrongTaskRate.Value:0.0} % / {100 * m.FalseAcceptRate.Value:0.0} %{(o.Result.Feasible ? "" : " (infeasible)")} | {Rate(audit.InScopeAccuracy)} | {Rate(audit.WrongTaskRate)} | {Rate(audit.FalseAcceptRate)} |");
                 table.AppendLine(line);
                 Log(line);
             }
@@ -78,5 +105,24 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         output.WriteLine("| k | setting | accept | margin | overrides | A accuracy / wrong / false accept | B in-scope accuracy | B wrong task | B false accept |");
         output.WriteLine("| --- | --- | --- | --- | --- | --- | --- | --- | --- |");
         output.WriteLine(table.ToString());
+    }
+
+    /// <summary>The registry and tuning suite of a variant (see the class remarks).</summary>
+    private (TaskPhrase.Registry.TaskRegistry Registry, List<ProbeCase> Tuning) Variant(string variant, TaskPhrase.Registry.TaskRegistry registry, List<ProbeCase> halfA)
+    {
+        var oos = Clinc150.Split("oos_train").Select(r => r.Text).ToList();
+        var gen = ClincEmbeddings.Generator(fixture);
+        var probes = (IEnumerable<string> texts) => halfA.Concat(texts.Select(t => new ProbeCase(t, ProbeCase.Reject))).ToList();
+        if (variant == "base") return (registry, halfA);
+        if (variant == "probes") return (registry, probes(oos));
+        if (variant.StartsWith("lookalike-", StringComparison.Ordinal))
+            return (ClincRegistry.WithLookAlikes(registry, oos, gen, int.Parse(variant["lookalike-".Length..], CultureInfo.InvariantCulture)), halfA);
+        if (variant.StartsWith("split-", StringComparison.Ordinal))
+        {
+            var even = oos.Where((_, i) => i % 2 == 0).ToList();
+            var odd = oos.Where((_, i) => i % 2 == 1);
+            return (ClincRegistry.WithLookAlikes(registry, even, gen, int.Parse(variant["split-".Length..], CultureInfo.InvariantCulture)), probes(odd));
+        }
+        throw new ArgumentException($"TASKPHRASE_CLINC_VARIANTS: unknown variant '{variant}'; use base, lookalike-N, probes or split-N.");
     }
 }

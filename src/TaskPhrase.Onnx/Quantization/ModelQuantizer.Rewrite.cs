@@ -73,7 +73,7 @@ public static partial class ModelQuantizer
             graph.Initializer.Add(FloatTensor(inverse, [k], smoothing.Select(s => 1f / s).ToArray()));
             var prefix = new List<NodeProto> { Node("Mul", Fresh(x + "_smooth"), [x, inverse], [smoothed]) };
             // Wide inputs (the feed-forward down-projection, fed by GELU) lose too much with one per-tensor 8-bit range:
-            // a few tokens ([CLS], [SEP], punctuation) have far larger outputs than the rest and set everyone's step.
+            // a token with much larger outputs than the rest sets every token's step; per-token scales avoid that.
             bool perToken = group.Channels > narrowest;
             string xq, xScale, xZero;
             if (perToken)

@@ -5,7 +5,7 @@ namespace TaskPhrase.Benchmarks;
 
 /// <summary>
 /// The int8 variant of the built-in model for the benchmarks: made once with <see cref="ModelQuantizer"/> into the
-/// scratch folder (about 10 s) and reused while its card names the current fp32 model as its source.
+/// scratch folder (about 10 s) and reused while its card names the current fp32 model as its source and the current method.
 /// </summary>
 internal static class Int8Models
 {
@@ -21,7 +21,7 @@ internal static class Int8Models
             {
                 var q = ModelCard.Load(card).Quantization;
                 using var fp32 = OnnxEmbedder.Create(BenchmarkPaths.ModelDirectory);
-                if (q?.SourceModelSha256 == fp32.Model.Sha256 && q.Alpha == new QuantizationOptions().Alpha) return dir;
+                if (q?.SourceModelSha256 == fp32.Model.Sha256 && q.Alpha == new QuantizationOptions().Alpha && q.Method == ModelQuantizer.Method) return dir;
             }
             catch (InvalidDataException)
             {

@@ -15,6 +15,8 @@ namespace TaskPhrase.Benchmarks;
 /// <item>Batch build: <see cref="TaskIndexBuilder.BuildAsync"/> of a 1,000-phrase registry (100 tasks × 10), fp32 at 2
 /// threads against int8 at its default 1 thread and at 2 threads.</item>
 /// </list>
+/// With <c>--baseline-int8 DIR</c> a second int8 model (e.g. one made by another method) joins both interleavings at
+/// the same settings, and its speed-up over the first int8 model is reported too (<c>--int8</c> against it).
 /// Reports median, p90, p99 per operation and each speed-up (fp32 median / int8 median) with a 95 % bootstrap
 /// interval that resamples whole rounds, plus the load average before and after.
 /// </summary>
@@ -22,10 +24,11 @@ internal static class Int8PairedHarness
 {
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "rounds", "warmup", "build-rounds", "fp32-threads", "int8-threads", "int8");
+        var a = new HarnessArguments(args, "rounds", "warmup", "build-rounds", "fp32-threads", "int8-threads", "int8", "baseline-int8");
         int rounds = Math.Max(10, a.Int("rounds", 1000)), warmup = a.Int("warmup", 100), buildRounds = Math.Max(3, a.Int("build-rounds", 8));
         int fp32Threads = a.Int("fp32-threads", 2), int8Threads = a.Int("int8-threads", 1);
         string int8Dir = Int8Models.Directory(a.Text("int8", ""));
+        string baselineDir = a.Text("baseline-int8", "");
         string loadBefore = LoadAverage();
 
         var registry = RegistryLoader.Load(BenchmarkPaths.HarborRegistry);
@@ -34,7 +37,11 @@ internal static class Int8PairedHarness
         if (!int8.Model.Id.EndsWith("-int8", StringComparison.Ordinal)) throw new InvalidOperationException($"{int8Dir} holds {int8.Model.Id}, not an int8 model.");
         var fp32Resolver = TaskResolver.Create(registry, fp32);
         var int8Resolver = TaskResolver.Create(registry, int8);
-        foreach (var (name, r) in new[] { ("fp32", fp32Resolver), ("int8", int8Resolver) })
+        using var baseline = baselineDir.Length > 0 ? OnnxEmbedder.Create(baselineDir, new OnnxEmbedderOptions { QuantizedIntraOpThreads = int8Threads, AllowSpinning = false }) : null;
+        var baselineResolver = baseline is null ? null : TaskResolver.Create(registry, baseline);
+        var resolvers = new List<(string, TaskResolver)> { ("fp32", fp32Resolver), ("int8", int8Resolver) };
+        if (baselineResolver is not null) resolvers.Add(("baseline int8", baselineResolver));
+        foreach (var (name, r) in resolvers)
         {
             var check = r.Resolve(ModelSetup.Command);
             if (check.ExactMatch || check.Outcome != ResolutionOutcome.Accepted || check.Task?.Id != "water-basil")
@@ -44,6 +51,11 @@ internal static class Int8PairedHarness
         // Single command.
         var single = new[] { new Samples($"resolve fp32 ({fp32Threads} threads)", rounds), new Samples($"resolve int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", rounds) };
         Action[] singleOps = [() => fp32Resolver.Resolve(ModelSetup.Command), () => int8Resolver.Resolve(ModelSetup.Command)];
+        if (baselineResolver is not null)
+        {
+            single = [.. single, new Samples($"resolve baseline int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", rounds)];
+            singleOps = [.. singleOps, () => baselineResolver.Resolve(ModelSetup.Command)];
+        }
         for (int i = 0; i < warmup; i++) foreach (var op in singleOps) op();
         var random = new Random(11);
         Interleave(rounds, singleOps, single, random);
@@ -56,6 +68,11 @@ internal static class Int8PairedHarness
         Func<OnnxEmbedder, Action> build = e => () => TaskIndexBuilder.BuildAsync(path, big, e).GetAwaiter().GetResult();
         Action[] buildOps = [build(fp32Build), build(int8), build(int8Build2)];
         var builds = new[] { new Samples("build 1,000 phrases fp32 (2 threads)", buildRounds), new Samples($"build 1,000 phrases int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")}, default)", buildRounds), new Samples("build 1,000 phrases int8 (2 threads)", buildRounds) };
+        if (baseline is not null)
+        {
+            builds = [.. builds, new Samples($"build 1,000 phrases baseline int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", buildRounds)];
+            buildOps = [.. buildOps, build(baseline)];
+        }
         foreach (var op in buildOps) op();
         Interleave(buildRounds, buildOps, builds, random);
         File.Delete(path);
@@ -70,6 +87,12 @@ internal static class Int8PairedHarness
         Report("single command, fp32 / int8", single[0], single[1], random, 1.8);
         Report($"batch build, fp32 (2 threads) / int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", builds[0], builds[1], random, 2.2);
         Report("batch build, fp32 (2 threads) / int8 (2 threads)", builds[0], builds[2], random, 2.2);
+        if (baseline is not null)
+        {
+            Console.WriteLine($"baseline int8 model {baselineDir}");
+            Report("single command, baseline int8 / int8", single[2], single[1], random, 1.0);
+            Report($"batch build, baseline int8 / int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", builds[3], builds[1], random, 1.0);
+        }
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"phrases/s: fp32 {1000 / (builds[0].Median / 1e6):0}, int8 ({int8Threads}) {1000 / (builds[1].Median / 1e6):0}, int8 (2) {1000 / (builds[2].Median / 1e6):0}"));
     }

@@ -7,7 +7,9 @@ namespace TaskPhrase.Onnx.Quantization;
 public static partial class ModelQuantizer
 {
     private const int FloatType = 1;
+    private const int UInt8Type = 2;
     private const int Int8Type = 3;
+    private const int Int64Type = 7;
 
     /// <summary>MatMuls that share one activation input (e.g. the Q, K and V projections of a layer): they share one smoothing vector and one activation quantiser.</summary>
     internal sealed record MatMulGroup(string Activation, int Channels, IReadOnlyList<NodeProto> MatMuls);
@@ -42,8 +44,8 @@ public static partial class ModelQuantizer
     /// Rewrites each group in place: <c>Mul(x, 1/s)</c> → <c>DynamicQuantizeLinear</c>, and per MatMul
     /// <c>MatMulInteger(x_q, W_q, x_zp)</c> → <c>Cast</c> → <c>Mul(·, x_scale · w_scale)</c>, with
     /// W_q = round(diag(s)·W / w_scale) and w_scale = column max|diag(s)·W| / 127. Groups wider than the narrowest
-    /// (the feed-forward down-projections) quantise their activation in two passes (value, then remainder).
-    /// Returns the number of MatMuls rewritten.
+    /// (the feed-forward down-projections, fed by GELU) quantise their activation per token instead of per tensor
+    /// (<see cref="AddPerTokenQuantization"/>). Returns the number of MatMuls rewritten.
     /// </summary>
     internal static int Rewrite(ModelProto model, IReadOnlyList<MatMulGroup> groups, IReadOnlyDictionary<string, float[]> activationMaxima,
         double alpha, CancellationToken cancellationToken)
@@ -68,24 +70,18 @@ public static partial class ModelQuantizer
 
             string x = group.Activation;
             string inverse = Fresh(x + "_smooth_inverse"), smoothed = Fresh(x + "_smoothed");
-            string xq = Fresh(x + "_quantized"), xScale = Fresh(x + "_scale"), xZero = Fresh(x + "_zero_point");
             graph.Initializer.Add(FloatTensor(inverse, [k], smoothing.Select(s => 1f / s).ToArray()));
-            var prefix = new List<NodeProto>
+            var prefix = new List<NodeProto> { Node("Mul", Fresh(x + "_smooth"), [x, inverse], [smoothed]) };
+            // Wide inputs (the feed-forward down-projection, fed by GELU) lose too much with one per-tensor 8-bit range:
+            // a token with much larger outputs than the rest sets every token's step; per-token scales avoid that.
+            bool perToken = group.Channels > narrowest;
+            string xq, xScale, xZero;
+            if (perToken)
+                (xq, xScale, xZero) = AddPerTokenQuantization(graph, prefix, smoothed, x, k, Fresh);
+            else
             {
-                Node("Mul", Fresh(x + "_smooth"), [x, inverse], [smoothed]),
-                Node("DynamicQuantizeLinear", Fresh(x + "_quantize"), [smoothed], [xq, xScale, xZero]),
-            };
-            // Wide inputs (the feed-forward down-projection, fed by GELU) lose too much in one 8-bit pass: quantise the
-            // remainder x − dequantize(x_q) a second time and add the second integer product (still int8 × int8).
-            bool twoPass = group.Channels > narrowest;
-            string rq = "", rScale = "", rZero = "";
-            if (twoPass)
-            {
-                string dequantized = Fresh(x + "_dequantized"), remainder = Fresh(x + "_remainder");
-                rq = Fresh(x + "_remainder_quantized"); rScale = Fresh(x + "_remainder_scale"); rZero = Fresh(x + "_remainder_zero_point");
-                prefix.Add(Node("DequantizeLinear", Fresh(x + "_dequantize"), [xq, xScale, xZero], [dequantized]));
-                prefix.Add(Node("Sub", Fresh(x + "_subtract"), [smoothed, dequantized], [remainder]));
-                prefix.Add(Node("DynamicQuantizeLinear", Fresh(x + "_remainder_quantize"), [remainder], [rq, rScale, rZero]));
+                xq = Fresh(x + "_quantized"); xScale = Fresh(x + "_scale"); xZero = Fresh(x + "_zero_point");
+                prefix.Add(Node("DynamicQuantizeLinear", Fresh(x + "_quantize"), [smoothed], [xq, xScale, xZero]));
             }
 
             for (int g = 0; g < group.MatMuls.Count; g++)
@@ -104,20 +100,27 @@ public static partial class ModelQuantizer
                 var nodes = g == 0 ? prefix : [];
                 nodes.Add(Node("MatMulInteger", Fresh(baseName + "_integer"), [xq, wq, xZero], [product]));
                 nodes.Add(cast);
-                nodes.Add(Node("Mul", Fresh(baseName + "_scales"), [xScale, wScale], [scale]));
-                string first = twoPass ? Fresh(baseName + "_first") : matMul.Output[0];
-                nodes.Add(Node("Mul", Fresh(baseName + "_rescale"), [asFloat, scale], [first]));
-                if (twoPass)
+                if (perToken)
                 {
-                    string product2 = Fresh(baseName + "_remainder_int32"), asFloat2 = Fresh(baseName + "_remainder_float");
-                    string scale2 = Fresh(baseName + "_remainder_output_scale"), second = Fresh(baseName + "_second");
-                    var cast2 = Node("Cast", Fresh(baseName + "_remainder_cast"), [product2], [asFloat2]);
-                    cast2.Attribute.Add(new AttributeProto { Name = "to", Type = AttributeProto.Types.AttributeType.Int, I = FloatType });
-                    nodes.Add(Node("MatMulInteger", Fresh(baseName + "_remainder_integer"), [rq, wq, rZero], [product2]));
-                    nodes.Add(cast2);
-                    nodes.Add(Node("Mul", Fresh(baseName + "_remainder_scales"), [rScale, wScale], [scale2]));
-                    nodes.Add(Node("Mul", Fresh(baseName + "_remainder_rescale"), [asFloat2, scale2], [second]));
-                    nodes.Add(Node("Add", Fresh(baseName + "_sum"), [first, second], [matMul.Output[0]]));
+                    // [rows, n] · row scale [rows, 1] · column scale [n], then back to the MatMul's own shape: its
+                    // input's shape with the last axis replaced by n.
+                    string rowScaled = Fresh(baseName + "_row_scaled"), rows = Fresh(baseName + "_rows_output");
+                    string inShape = Fresh(baseName + "_input_shape"), lead = Fresh(baseName + "_leading_shape"), outShape = Fresh(baseName + "_output_shape");
+                    string start = Fresh(baseName + "_shape_start"), end = Fresh(baseName + "_shape_end"), last = Fresh(baseName + "_shape_last");
+                    graph.Initializer.Add(Int64Tensor(start, [0]));
+                    graph.Initializer.Add(Int64Tensor(end, [-1]));
+                    graph.Initializer.Add(Int64Tensor(last, [n]));
+                    nodes.Add(Node("Mul", Fresh(baseName + "_row_rescale"), [asFloat, xScale], [rowScaled]));
+                    nodes.Add(Node("Mul", Fresh(baseName + "_rescale"), [rowScaled, wScale], [rows]));
+                    nodes.Add(Node("Shape", Fresh(baseName + "_input_shape_of"), [matMul.Input[0]], [inShape]));
+                    nodes.Add(Node("Slice", Fresh(baseName + "_leading_shape_of"), [inShape, start, end], [lead]));
+                    nodes.Add(WithInt(Node("Concat", Fresh(baseName + "_output_shape_of"), [lead, last], [outShape]), "axis", 0));
+                    nodes.Add(Node("Reshape", Fresh(baseName + "_output_reshape"), [rows, outShape], [matMul.Output[0]]));
+                }
+                else
+                {
+                    nodes.Add(Node("Mul", Fresh(baseName + "_scales"), [xScale, wScale], [scale]));
+                    nodes.Add(Node("Mul", Fresh(baseName + "_rescale"), [asFloat, scale], [matMul.Output[0]]));
                 }
                 replacements[matMul] = nodes;
                 removed.Add(w.Name);
@@ -141,6 +144,69 @@ public static partial class ModelQuantizer
         model.ProducerName = "TaskPhrase.ModelQuantizer";
         model.ProducerVersion = Method;
         return count;
+    }
+
+    /// <summary>
+    /// Per-token symmetric 8-bit quantisation of <paramref name="x"/> ([.., k]), appended to <paramref name="nodes"/>:
+    /// <c>Reshape</c> to [rows, k]; per row r the step d_r = max_j |x_rj| / 127 (from <c>ReduceMax</c> and
+    /// <c>ReduceMin</c>, at least 1e-30); one <c>QuantizeLinear</c> along axis 0 with scale d and zero point 128 (uint8,
+    /// so that <c>MatMulInteger</c> runs the u8 × s8 kernels; q − 128 = round-half-even(x / d) in [−127, 127]).
+    /// Returns the quantised [rows, k] tensor, the step as [rows, 1] and the scalar zero point 128.
+    /// </summary>
+    private static (string Quantized, string RowScale, string ZeroPoint) AddPerTokenQuantization(GraphProto graph, List<NodeProto> nodes,
+        string x, string prefix, int k, Func<string, string> fresh)
+    {
+        string rowsShape = fresh(prefix + "_rows_shape"), rows = fresh(prefix + "_rows");
+        string max = fresh(prefix + "_row_max"), min = fresh(prefix + "_row_min"), negatedMin = fresh(prefix + "_row_min_negated");
+        string absMax = fresh(prefix + "_row_absmax"), step = fresh(prefix + "_row_step"), count = fresh(prefix + "_row_count");
+        string rowZero = fresh(prefix + "_row_zero_point"), quantized = fresh(prefix + "_quantized"), column = fresh(prefix + "_row_scale");
+        string tiny = fresh(prefix + "_step_floor"), levels = fresh(prefix + "_levels"), axis1 = fresh(prefix + "_axis_one"), zero = fresh(prefix + "_zero_point");
+        graph.Initializer.Add(Int64Tensor(rowsShape, [-1, k]));
+        graph.Initializer.Add(FloatTensor(tiny, [], [1e-30f]));
+        graph.Initializer.Add(FloatTensor(levels, [], [127f]));
+        graph.Initializer.Add(Int64Tensor(axis1, [1]));
+        graph.Initializer.Add(new TensorProto { Name = zero, DataType = UInt8Type, RawData = ByteString.CopyFrom([(byte)128]) });
+
+        var reduceMax = Node("ReduceMax", fresh(prefix + "_row_max_of"), [rows], [max]);
+        var reduceMin = Node("ReduceMin", fresh(prefix + "_row_min_of"), [rows], [min]);
+        foreach (var reduce in new[] { reduceMax, reduceMin })
+        {
+            var axes = new AttributeProto { Name = "axes", Type = AttributeProto.Types.AttributeType.Ints };
+            axes.Ints.Add(1);
+            reduce.Attribute.Add(axes);
+            WithInt(reduce, "keepdims", 0);
+        }
+        var zeros = Node("ConstantOfShape", fresh(prefix + "_row_zero_point_of"), [count], [rowZero]);
+        zeros.Attribute.Add(new AttributeProto
+        {
+            Name = "value",
+            Type = AttributeProto.Types.AttributeType.Tensor,
+            T = new TensorProto { DataType = UInt8Type, Dims = { 1 }, RawData = ByteString.CopyFrom([(byte)128]) },
+        });
+        nodes.Add(Node("Reshape", fresh(prefix + "_rows_of"), [x, rowsShape], [rows]));
+        nodes.Add(reduceMax);
+        nodes.Add(reduceMin);
+        nodes.Add(Node("Neg", fresh(prefix + "_row_min_negate"), [min], [negatedMin]));
+        nodes.Add(Node("Max", fresh(prefix + "_row_absmax_of"), [max, negatedMin, tiny], [absMax]));
+        nodes.Add(Node("Div", fresh(prefix + "_row_step_of"), [absMax, levels], [step]));
+        nodes.Add(Node("Shape", fresh(prefix + "_row_count_of"), [step], [count]));
+        nodes.Add(zeros);
+        nodes.Add(WithInt(Node("QuantizeLinear", fresh(prefix + "_quantize"), [rows, step, rowZero], [quantized]), "axis", 0));
+        nodes.Add(Node("Unsqueeze", fresh(prefix + "_row_scale_of"), [step, axis1], [column]));
+        return (quantized, column, zero);
+    }
+
+    private static NodeProto WithInt(NodeProto node, string name, long value)
+    {
+        node.Attribute.Add(new AttributeProto { Name = name, Type = AttributeProto.Types.AttributeType.Int, I = value });
+        return node;
+    }
+
+    private static TensorProto Int64Tensor(string name, long[] values)
+    {
+        var bytes = new byte[values.Length * 8];
+        for (int i = 0; i < values.Length; i++) BinaryPrimitives.WriteInt64LittleEndian(bytes.AsSpan(i * 8), values[i]);
+        return new TensorProto { Name = name, DataType = Int64Type, Dims = { values.Length }, RawData = ByteString.CopyFrom(bytes) };
     }
 
     /// <summary>s_j = max|X_j|^α / max_n|W_jn|^(1−α) over all weights of the group, clamped to [1e-4, 1e4]; 1 where a maximum is 0.</summary>

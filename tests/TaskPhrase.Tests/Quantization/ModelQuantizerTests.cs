@@ -25,6 +25,26 @@ public sealed class ModelQuantizerTests(QuantizedModelFixture fixture)
     }
 
     [Fact]
+    public void Quantize_Graph_QuantisesTheWideInputsPerTokenAndTheOthersPerTensor()
+    {
+        // all-MiniLM-L6-v2: 6 layers, each with three 384-channel activation groups (Q/K/V input, attention output
+        // input, intermediate input: DynamicQuantizeLinear per tensor) and one 1,536-channel group (the down-projection
+        // fed by GELU: per-token QuantizeLinear along the rows of a [-1, 1536] reshape); 36 MatMulInteger in all.
+        var graph = fixture.Graph ?? throw new InvalidOperationException(fixture.Result.Failure);
+        var ops = graph.OpCounts;
+        Assert.Equal(36, ops.GetValueOrDefault("MatMulInteger"));
+        Assert.Equal(18, ops.GetValueOrDefault("DynamicQuantizeLinear"));
+        Assert.Equal(6, ops.GetValueOrDefault("QuantizeLinear"));
+        Assert.Equal(0, ops.GetValueOrDefault("DequantizeLinear"));
+        Assert.Empty(graph.NonStandard);
+        Assert.All(graph.QuantizeLinear, q =>
+        {
+            Assert.Equal(0, q.Axis);
+            Assert.Equal(new long[] { -1, 1536 }, q.InputShape);
+        });
+    }
+
+    [Fact]
     public void Quantize_Card_RecordsProvenanceAndFigures()
     {
         var card = ModelCard.Load(Path.Combine(fixture.ModelDirectory, "model.json"));

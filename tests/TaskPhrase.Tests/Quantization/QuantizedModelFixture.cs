@@ -14,7 +14,14 @@ public sealed class QuantizedModelFixture : IDisposable
         Result = ModelQuantizer.Quantize(BuiltInModels.MiniLmL6V2, ModelDirectory, new QuantizationOptions { Clinc150Path = TestPaths.Clinc150 });
         Fp32 = OnnxEmbedder.CreateDefault();
         Int8 = Result.Passed ? OnnxEmbedder.Create(ModelDirectory) : null;
+        if (Result.Passed) Graph = GraphSummary.Read(Path.Combine(ModelDirectory, "model.onnx"));
     }
+
+    /// <summary>
+    /// The written graph's operators, read here once (parsing the model takes tens of MiB of managed memory; done
+    /// while the fixture is built, it does not overlap the managed-heap soak test of another collection).
+    /// </summary>
+    public GraphSummary? Graph { get; }
 
     public string Root { get; }
 
@@ -32,6 +39,32 @@ public sealed class QuantizedModelFixture : IDisposable
         Int8?.Dispose();
         Fp32.Dispose();
         Directory.Delete(Root, recursive: true);
+    }
+}
+
+/// <summary>Operator counts of a model graph, the non-standard operators, and for each QuantizeLinear its axis and the constant shape of the Reshape feeding it.</summary>
+public sealed record GraphSummary(IReadOnlyDictionary<string, int> OpCounts, IReadOnlyList<string> NonStandard, IReadOnlyList<(long Axis, long[] InputShape)> QuantizeLinear)
+{
+    public static GraphSummary Read(string modelPath)
+    {
+        var model = global::Onnx.ModelProto.Parser.ParseFrom(File.ReadAllBytes(modelPath));
+        var nodes = model.Graph.Node;
+        var producers = nodes.SelectMany(n => n.Output.Select(o => (o, n))).ToDictionary(p => p.o, p => p.n);
+        var initializers = model.Graph.Initializer.ToDictionary(t => t.Name);
+        var quantize = new List<(long, long[])>();
+        foreach (var q in nodes.Where(n => n.OpType == "QuantizeLinear"))
+        {
+            long axis = q.Attribute.SingleOrDefault(a => a.Name == "axis")?.I ?? 1;
+            var reshape = producers.GetValueOrDefault(q.Input[0]);
+            long[] shape = reshape?.OpType == "Reshape" && initializers.TryGetValue(reshape.Input[1], out var t)
+                ? Enumerable.Range(0, t.RawData.Length / 8).Select(i => BitConverter.ToInt64(t.RawData.Span[(i * 8)..])).ToArray()
+                : [];
+            quantize.Add((axis, shape));
+        }
+        return new GraphSummary(
+            nodes.GroupBy(n => n.OpType).ToDictionary(g => g.Key, g => g.Count()),
+            nodes.Where(n => n.Domain is not ("" or "ai.onnx")).Select(n => $"{n.Name}: {n.Domain}.{n.OpType}").ToList(),
+            quantize);
     }
 }
 

@@ -80,7 +80,7 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
 
     /// <summary>
     /// Embeds many texts. Texts are sorted by token length and run in batches of up to
-    /// <see cref="OnnxEmbedderOptions.BatchSize"/>, each padded to its longest member; results come back
+    /// <see cref="OnnxEmbedderOptions.BatchSize"/> (<see cref="OnnxEmbedderOptions.QuantizedBatchSize"/> for int8), each padded to its longest member; results come back
     /// in input order. For fp32 models they equal one-at-a-time results within float rounding. For int8 models
     /// (cards with a <c>quantization</c> section) a batch holds only texts of one token length: padding rows
     /// widen the per-tensor activation ranges of the int8 MatMuls and shift the embeddings (min cosine to fp32
@@ -110,8 +110,8 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
             }
             var order = Enumerable.Range(0, n).OrderBy(i => counts[i]).ThenBy(i => i).ToArray();
             var vectors = new float[n][];
-            int batch = _options.BatchSize;
             bool bucketByLength = _card.IsQuantized;
+            int batch = bucketByLength && _options.QuantizedBatchSize > 0 ? _options.QuantizedBatchSize : _options.BatchSize;
             for (int start = 0, size; start < n; start += size)
             {
                 cancellationToken.ThrowIfCancellationRequested();

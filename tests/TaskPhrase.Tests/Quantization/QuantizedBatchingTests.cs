@@ -65,7 +65,7 @@ public sealed class QuantizedBatchingTests(QuantizedModelFixture fixture, ITestO
         foreach (var group in Enumerable.Range(0, phrases.Count).GroupBy(i => counts[i]))
         {
             var members = group.ToArray();
-            if (members.Length < 2 || members.Length > new OnnxEmbedderOptions().BatchSize) continue;
+            if (members.Length < 2 || members.Length > new OnnxEmbedderOptions().QuantizedBatchSize) continue;
             var (alone, _) = Int8.EmbedMany(members.Select(i => phrases[i]).ToList());
             for (int k = 0; k < members.Length; k++)
             {

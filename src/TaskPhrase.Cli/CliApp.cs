@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.CommandLine.Parsing;
 using TaskPhrase.Cli.Commands;
+using TaskPhrase.Onnx;
 
 namespace TaskPhrase.Cli;
 
@@ -8,7 +9,17 @@ namespace TaskPhrase.Cli;
 internal static class CliApp
 {
     public static int Run(string[] args, TextWriter stdout, TextWriter stderr)
-        => Run(args, new CliContext { Out = stdout, Err = stderr, Interactive = !Console.IsOutputRedirected && !Console.IsInputRedirected });
+        => Run(args, new CliContext
+        {
+            Out = stdout,
+            Err = stderr,
+            Interactive = !Console.IsOutputRedirected && !Console.IsInputRedirected,
+            LoadBatchModel = dir =>
+            {
+                var batch = new OnnxEmbedderOptions { QuantizedIntraOpThreads = 0 };
+                return dir is null ? OnnxEmbedder.CreateDefault(batch) : OnnxEmbedder.Create(dir, batch);
+            },
+        });
 
     public static int Run(string[] args, CliContext context)
     {

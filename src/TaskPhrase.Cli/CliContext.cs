@@ -18,6 +18,13 @@ internal sealed class CliContext
     /// <summary>Loads an embedder for <c>--model</c> (null: the built-in default). Tests inject a shared one.</summary>
     public Func<string?, OnnxEmbedder> LoadModel { get; init; } = dir => dir is null ? OnnxEmbedder.CreateDefault() : OnnxEmbedder.Create(dir);
 
+    /// <summary>
+    /// Loads an embedder for a batch job (<c>build</c>); null uses <see cref="LoadModel"/>. The tool sets it to load
+    /// int8 models with the fp32 thread count: one thread is the int8 default because it is fastest for single
+    /// commands, two are faster for batches (docs/int8.md).
+    /// </summary>
+    public Func<string?, OnnxEmbedder>? LoadBatchModel { get; init; }
+
     /// <summary>True when the caller owns embedders returned by <see cref="LoadModel"/> (tests share one).</summary>
     public bool OwnsModels { get; init; } = true;
 
@@ -36,11 +43,16 @@ internal sealed class CliContext
     }
 
     /// <summary>Loads the model, turning load failures into one-line errors.</summary>
-    public ModelLease Model(string? directory)
+    public ModelLease Model(string? directory) => Load(LoadModel, directory);
+
+    /// <summary>Loads the model for a batch job (<see cref="LoadBatchModel"/>, else <see cref="LoadModel"/>).</summary>
+    public ModelLease BatchModel(string? directory) => Load(LoadBatchModel ?? LoadModel, directory);
+
+    private ModelLease Load(Func<string?, OnnxEmbedder> load, string? directory)
     {
         try
         {
-            return new ModelLease(LoadModel(directory), OwnsModels);
+            return new ModelLease(load(directory), OwnsModels);
         }
         catch (Exception e) when (e is DirectoryNotFoundException or InvalidDataException or FileNotFoundException)
         {

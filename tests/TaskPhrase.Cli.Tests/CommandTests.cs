@@ -95,6 +95,28 @@ public class CommandTests(CliFixture cli)
     }
 
     [Fact]
+    public void Build_LoadsTheModelThroughTheBatchLoader_OthersThroughTheSingleCommandOne()
+    {
+        string index = Path.Combine(Path.GetTempPath(), $"tp-{Guid.NewGuid():N}.idx");
+        var loaded = new List<string>();
+        var context = new CliContext
+        {
+            Out = new StringWriter(),
+            Err = new StringWriter(),
+            LoadModel = _ => { loaded.Add("single"); return cli.Embedder; },
+            LoadBatchModel = _ => { loaded.Add("batch"); return cli.Embedder; },
+            OwnsModels = false,
+        };
+        try
+        {
+            Assert.Equal(0, CliApp.Run(["build", "--registry", Registry, "--output", index], context));
+            Assert.Equal(0, CliApp.Run(["resolve", "--index", index, "water the basil"], context));
+            Assert.Equal(["batch", "single"], loaded);
+        }
+        finally { File.Delete(index); }
+    }
+
+    [Fact]
     public void Build_ThenResolveFromIndex_GivesSameDecisions_AndFlippedByteIsRefused()
     {
         string index = Path.Combine(Path.GetTempPath(), $"tp-{Guid.NewGuid():N}.idx");

@@ -19,7 +19,7 @@ internal static class BuildCommand
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
             var loaded = ResolverFactory.LoadRegistry(parse.GetValue(registry)!);
-            using var lease = context.Model(parse.GetValue(model));
+            using var lease = context.BatchModel(parse.GetValue(model));
             var generator = parse.GetValue(film) is { } filmPath ? FilmSupport.Load(filmPath, lease.Embedder.Model.Dimensions) : null;
             string path = parse.GetValue(output)!;
             var started = System.Diagnostics.Stopwatch.StartNew();

@@ -19,7 +19,8 @@ internal sealed class CliContext
     public Func<string?, OnnxEmbedder> LoadModel { get; init; } = dir => dir is null ? OnnxEmbedder.CreateDefault() : OnnxEmbedder.Create(dir);
 
     /// <summary>
-    /// Loads an embedder for a batch job (<c>build</c>); null uses <see cref="LoadModel"/>. The tool sets it to load
+    /// Loads an embedder for a batch job (<c>build</c>, <c>audit</c>, <c>tune</c>: whole registries and probe suites
+    /// embedded in batches); null uses <see cref="LoadModel"/>. The tool sets it to load
     /// int8 models with the fp32 thread count: one thread is the int8 default because it is fastest for single
     /// commands, two are faster for batches (docs/int8.md).
     /// </summary>

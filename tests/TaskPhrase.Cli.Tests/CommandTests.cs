@@ -95,7 +95,7 @@ public class CommandTests(CliFixture cli)
     }
 
     [Fact]
-    public void Build_LoadsTheModelThroughTheBatchLoader_OthersThroughTheSingleCommandOne()
+    public void BuildAndAudit_LoadTheModelThroughTheBatchLoader_ResolveThroughTheSingleCommandOne()
     {
         string index = Path.Combine(Path.GetTempPath(), $"tp-{Guid.NewGuid():N}.idx");
         var loaded = new List<string>();
@@ -111,7 +111,8 @@ public class CommandTests(CliFixture cli)
         {
             Assert.Equal(0, CliApp.Run(["build", "--registry", Registry, "--output", index], context));
             Assert.Equal(0, CliApp.Run(["resolve", "--index", index, "water the basil"], context));
-            Assert.Equal(["batch", "single"], loaded);
+            Assert.Equal(0, CliApp.Run(["audit", "--index", index, "--probes", Probes], context));
+            Assert.Equal(["batch", "single", "batch"], loaded);
         }
         finally { File.Delete(index); }
     }

@@ -29,7 +29,7 @@ internal static class AuditCommand
         };
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
-            using var lease = context.Model(parse.GetValue(model));
+            using var lease = context.BatchModel(parse.GetValue(model));
             var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
             string probesPath = parse.GetValue(probes)!;
             var suite = ProbeRunner.LoadSuite(probesPath, resolver.Registry);

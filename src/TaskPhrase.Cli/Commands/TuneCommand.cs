@@ -59,7 +59,7 @@ internal static class TuneCommand
             }
             string registryPath = parse.GetValue(registry)!, probesPath = parse.GetValue(probes)!;
             var loaded = ResolverFactory.LoadRegistry(registryPath);
-            using var lease = context.Model(parse.GetValue(model));
+            using var lease = context.BatchModel(parse.GetValue(model));
             var suite = ProbeRunner.LoadSuite(probesPath, loaded);
             TuningResult result;
             ScoringSearchResult? search = null;

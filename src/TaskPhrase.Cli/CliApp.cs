@@ -16,7 +16,7 @@ internal static class CliApp
             Interactive = !Console.IsOutputRedirected && !Console.IsInputRedirected,
             LoadBatchModel = dir =>
             {
-                var batch = new OnnxEmbedderOptions { QuantizedIntraOpThreads = 0 };
+                var batch = OnnxEmbedderOptions.ForBatchWork();
                 return dir is null ? OnnxEmbedder.CreateDefault(batch) : OnnxEmbedder.Create(dir, batch);
             },
         });

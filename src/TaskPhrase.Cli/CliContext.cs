@@ -20,9 +20,8 @@ internal sealed class CliContext
 
     /// <summary>
     /// Loads an embedder for a batch job (<c>build</c>, <c>audit</c>, <c>tune</c>: whole registries and probe suites
-    /// embedded in batches); null uses <see cref="LoadModel"/>. The tool sets it to load
-    /// int8 models with the fp32 thread count: one thread is the int8 default because it is fastest for single
-    /// commands, two are faster for batches (docs/int8.md).
+    /// embedded in batches); null uses <see cref="LoadModel"/>. The tool sets it to
+    /// <see cref="OnnxEmbedderOptions.ForBatchWork"/> (batches side by side; the defaults suit single commands).
     /// </summary>
     public Func<string?, OnnxEmbedder>? LoadBatchModel { get; init; }
 

@@ -150,6 +150,7 @@ public sealed partial class OnnxEmbedder
         // Without VNNI, x64 int8 kernels can saturate the u8×s8 pair products; this setting avoids that. With VNNI it
         // only costs speed (measured about half), so it is set only where VNNI is missing.
         if (card.IsQuantized && NeedsX64QuantPrecision) sessionOptions.AddSessionConfigEntry("session.x64quantprecision", "1");
+        options.ConfigureSession?.Invoke(sessionOptions);
         return sessionOptions;
     }
 

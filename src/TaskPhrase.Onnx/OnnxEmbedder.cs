@@ -112,9 +112,10 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
             var vectors = new float[n][];
             bool bucketByLength = _card.IsQuantized;
             int batch = bucketByLength && _options.QuantizedBatchSize > 0 ? _options.QuantizedBatchSize : _options.BatchSize;
+            // Cut the length-sorted order into batches first, so that they can run one after the other or side by side.
+            var batches = new List<(int Start, int Size)>();
             for (int start = 0, size; start < n; start += size)
             {
-                cancellationToken.ThrowIfCancellationRequested();
                 size = Math.Min(batch, n - start);
                 if (bucketByLength)
                 {
@@ -123,6 +124,11 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
                     for (int k = 1; k < size; k++)
                         if (counts[order[start + k]] != length) { size = k; break; }
                 }
+                batches.Add((start, size));
+            }
+            void Run((int Start, int Size) b)
+            {
+                var (start, size) = b;
                 int width = 0;
                 for (int k = 0; k < size; k++) width = Math.Max(width, counts[order[start + k]]);
                 var ids = new long[size * width];
@@ -136,6 +142,28 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
                 var output = new float[size * dims];
                 RunBatch(ids, mask, size, width, output);
                 for (int k = 0; k < size; k++) vectors[order[start + k]] = output.AsSpan(k * dims, dims).ToArray();
+            }
+            int workers = Math.Min(ParallelBatchesFor(_card, _options), batches.Count);
+            if (workers <= 1)
+            {
+                foreach (var b in batches)
+                {
+                    cancellationToken.ThrowIfCancellationRequested();
+                    Run(b);
+                }
+            }
+            else
+            {
+                // Longest batches first, so that the workers finish together.
+                batches.Sort((x, y) => (counts[order[y.Start + y.Size - 1]] * y.Size).CompareTo(counts[order[x.Start + x.Size - 1]] * x.Size));
+                try
+                {
+                    Parallel.ForEach(batches, new ParallelOptions { MaxDegreeOfParallelism = workers, CancellationToken = cancellationToken }, Run);
+                }
+                catch (AggregateException e) when (e.InnerExceptions.Count >= 1)
+                {
+                    System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerExceptions[0]).Throw();
+                }
             }
             return (vectors, truncated);
         }
@@ -205,6 +233,10 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     }
 
     private void ExitCall() => _lifetime.ExitReadLock();
+
+    /// <summary>How many batches <see cref="EmbedMany"/> runs side by side for this model.</summary>
+    internal static int ParallelBatchesFor(ModelCard card, OnnxEmbedderOptions options) =>
+        card.IsQuantized && options.QuantizedParallelBatches > 0 ? options.QuantizedParallelBatches : options.ParallelBatches;
 
     /// <summary>Runs one padded batch [size, width] and writes pooled, normalised vectors to <paramref name="destination"/>.</summary>
     private void RunBatch(long[] ids, long[] mask, int size, int width, Span<float> destination)

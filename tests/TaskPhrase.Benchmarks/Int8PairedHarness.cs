@@ -24,7 +24,7 @@ internal static class Int8PairedHarness
 {
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "rounds", "warmup", "build-rounds", "fp32-threads", "int8-threads", "int8", "baseline-int8");
+        var a = new HarnessArguments(args, "rounds", "warmup", "build-rounds", "fp32-threads", "int8-threads", "int8", "baseline-int8", "parallel");
         int rounds = Math.Max(10, a.Int("rounds", 1000)), warmup = a.Int("warmup", 100), buildRounds = Math.Max(3, a.Int("build-rounds", 8));
         int fp32Threads = a.Int("fp32-threads", 2), int8Threads = a.Int("int8-threads", 1);
         string int8Dir = Int8Models.Directory(a.Text("int8", ""));
@@ -73,6 +73,15 @@ internal static class Int8PairedHarness
             builds = [.. builds, new Samples($"build 1,000 phrases baseline int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", buildRounds)];
             buildOps = [.. buildOps, build(baseline)];
         }
+        // --parallel W: both variants also at 1 intra-op thread with W batches side by side on the one session.
+        int parallel = a.Int("parallel", 0), parallelAt = builds.Length;
+        using var fp32Parallel = parallel > 1 ? OnnxEmbedder.Create(BenchmarkPaths.ModelDirectory, new OnnxEmbedderOptions { IntraOpThreads = 1, ParallelBatches = parallel }) : null;
+        using var int8Parallel = parallel > 1 ? OnnxEmbedder.Create(int8Dir, new OnnxEmbedderOptions { QuantizedIntraOpThreads = 1, ParallelBatches = parallel }) : null;
+        if (fp32Parallel is not null && int8Parallel is not null)
+        {
+            builds = [.. builds, new Samples($"build 1,000 phrases fp32 (1 thread × {parallel} batches)", buildRounds), new Samples($"build 1,000 phrases int8 (1 thread × {parallel} batches)", buildRounds)];
+            buildOps = [.. buildOps, build(fp32Parallel), build(int8Parallel)];
+        }
         foreach (var op in buildOps) op();
         Interleave(buildRounds, buildOps, builds, random);
         File.Delete(path);
@@ -92,6 +101,12 @@ internal static class Int8PairedHarness
             Console.WriteLine($"baseline int8 model {baselineDir}");
             Report("single command, baseline int8 / int8", single[2], single[1], random, 1.0);
             Report($"batch build, baseline int8 / int8 ({int8Threads} thread{(int8Threads == 1 ? "" : "s")})", builds[3], builds[1], random, 1.0);
+        }
+        if (parallel > 1)
+        {
+            var fp32Best = builds[0].Median <= builds[parallelAt].Median ? builds[0] : builds[parallelAt];
+            Report($"batch build, fp32 at its best ({fp32Best.Name}) / int8 (1 thread × {parallel} batches)", fp32Best, builds[parallelAt + 1], random, 2.2);
+            Report($"batch build, fp32 (2 threads) / fp32 (1 thread × {parallel} batches)", builds[0], builds[parallelAt], random, 1.0);
         }
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"phrases/s: fp32 {1000 / (builds[0].Median / 1e6):0}, int8 ({int8Threads}) {1000 / (builds[1].Median / 1e6):0}, int8 (2) {1000 / (builds[2].Median / 1e6):0}"));

@@ -35,6 +35,9 @@ switch (args.FirstOrDefault())
     case "search":
         SearchHarness.Run(args.Skip(1));
         return 0;
+    case "op-profile":
+        OpProfile.Run(args.Skip(1));
+        return 0;
     case "snapshot":
         BehaviourSnapshot.Run(args.Skip(1));
         return 0;

@@ -54,6 +54,19 @@ public sealed class QuantizedBatchingTests(QuantizedModelFixture fixture, ITestO
     }
 
     [Fact]
+    public void EmbedMany_Int8_BatchesSideBySide_EqualOneAfterTheOther()
+    {
+        // Integer kernels are exact, so the schedule of the batches may not change a single bit.
+        var phrases = Phrases.Value;
+        using var sequential = OnnxEmbedder.Create(fixture.ModelDirectory, new OnnxEmbedderOptions { QuantizedIntraOpThreads = 1, QuantizedBatchSize = 8 });
+        using var parallel = OnnxEmbedder.Create(fixture.ModelDirectory, new OnnxEmbedderOptions { QuantizedIntraOpThreads = 1, QuantizedBatchSize = 8, QuantizedParallelBatches = 2, ParallelBatches = 1 });
+        var (a, _) = sequential.EmbedMany(phrases);
+        var (b, _) = parallel.EmbedMany(phrases);
+        for (int i = 0; i < phrases.Count; i++)
+            Assert.True(a[i].AsSpan().SequenceEqual(b[i]), $"'{phrases[i]}' differs between sequential and parallel int8 batches");
+    }
+
+    [Fact]
     public void EmbedMany_Int8_BatchesOnlyTextsOfOneLength()
     {
         // Observable consequence: a text's batched vector is the same whether the other texts of its length are

@@ -68,34 +68,30 @@ public sealed partial class OnnxEmbedder
     }
 
     /// <summary>
-    /// Loads a model directory, from its pre-optimised file when <paramref name="opened"/> is given (falling back to
-    /// model.onnx when that file's bytes do not match its record or ONNX Runtime refuses it), else from model.onnx.
+    /// Loads a model directory, from its mapped form when <paramref name="opened"/> is given (falling back to
+    /// model.onnx when those files do not match their record or ONNX Runtime refuses them), else from model.onnx.
     /// </summary>
     internal static OnnxEmbedder CreateCore(string directory, ModelCard card, OnnxEmbedderOptions options, OptimizedModel.Opened? opened, string note = "")
     {
         string modelPath = Path.Combine(directory, "model.onnx");
         string vocabPath = Path.Combine(directory, "vocab.txt");
-        // Hash the model (or the pre-optimised file, whose record carries the source's hash) and read the vocabulary
+        // Hash the model (or the mapped form's files, whose record carries the source's hash) and read the vocabulary
         // beside session creation (the longest step of a cold start).
         var hashing = opened is null
             ? Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); })
-            : Task.Run(() => Convert.ToHexStringLower(SHA256.HashData(opened.Bytes)));
+            : Task.Run(() => OptimizedModel.Verify(opened));
         var tokenizing = Task.Run(() => new WordPieceTokenizer(vocabPath, card.Lowercase));
         InferenceSession session;
         using (var sessionOptions = SessionOptionsFor(card, options))
         {
             try
             {
-                if (opened is null) session = new InferenceSession(modelPath, sessionOptions);
-                else
-                {
-                    OptimizedModel.UseBytesInPlace(sessionOptions);
-                    session = new InferenceSession(opened.Bytes, sessionOptions);
-                }
+                session = new InferenceSession(opened?.GraphPath ?? modelPath, sessionOptions);
             }
             catch (OnnxRuntimeException e) when (opened is not null)
             {
                 tokenizing.GetAwaiter().GetResult();
+                hashing.GetAwaiter().GetResult();
                 return CreateCore(directory, card, options, null, $"ONNX Runtime refused {OptimizedModel.FileName} ({e.Message})");
             }
             catch (Exception e)
@@ -114,10 +110,10 @@ public sealed partial class OnnxEmbedder
             string sha = hashing.GetAwaiter().GetResult();
             if (opened is not null)
             {
-                if (!string.Equals(sha, opened.Record.Sha256, StringComparison.OrdinalIgnoreCase))
+                if (sha.Length > 0)
                 {
                     session.Dispose();
-                    return CreateCore(directory, card, options, null, $"{OptimizedModel.FileName} has SHA-256 {sha}, its record says {opened.Record.Sha256}");
+                    return CreateCore(directory, card, options, null, sha);
                 }
                 sha = opened.Record.SourceSha256;
             }
@@ -125,7 +121,7 @@ public sealed partial class OnnxEmbedder
                 throw new InvalidDataException($"{modelPath}: SHA-256 is {sha} but the model card records {expected}. The file was changed or corrupted; restore it (rebuild extracts the built-in models again).");
             return new OnnxEmbedder(directory, card, options, session, tokenizer, outputName, needsTypes, sha)
             {
-                _modelBytes = opened?.Bytes,
+                UsesOptimizedModel = opened is not null,
                 OptimizedModelNote = opened is null ? note : "",
             };
         }
@@ -155,10 +151,11 @@ public sealed partial class OnnxEmbedder
     }
 
     /// <summary>
-    /// Writes the pre-optimised form of a model directory (<c>model.ort</c> and its record <c>model.ort.json</c>) so
-    /// that later loads skip ONNX Runtime's graph optimisation (a shorter cold start; the embeddings are the same bit
-    /// for bit, which this checks before keeping the file). The file is valid only for this ONNX Runtime version and
-    /// this CPU's instruction-set extensions; elsewhere loads ignore it and use model.onnx.
+    /// Writes the mapped form of a model directory (<c>model.mapped.onnx</c>, the graph, and <c>model.mapped.data</c>,
+    /// its large weights at page-aligned offsets, with the record <c>model.mapped.json</c>) so that later loads map the
+    /// weights into memory instead of copying them: a shorter cold start and a lower peak memory, with embeddings the
+    /// same bit for bit (checked before the files are kept). Later loads use it unless
+    /// <see cref="OnnxEmbedderOptions.UseOptimizedModel"/> is off, and ignore it when it no longer fits model.onnx.
     /// </summary>
     /// <param name="directoryOrId">A model directory or built-in id; it must be writable.</param>
     /// <param name="options">Runtime settings (thread counts do not matter); null for the defaults.</param>

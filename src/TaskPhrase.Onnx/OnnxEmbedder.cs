@@ -26,8 +26,6 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     private readonly EmbeddingGeneratorMetadata _metadata;
     private readonly ReaderWriterLockSlim _lifetime = new(LockRecursionPolicy.SupportsRecursion);
     private bool _disposed;
-    // The pre-optimised model's bytes when the session reads them in place (pinned; kept for the session's lifetime).
-    private byte[]? _modelBytes;
 
     /// <summary>Identity of the loaded model (id, SHA-256 of model.onnx, dimensions, token limit, pooling).</summary>
     public EmbeddingModelInfo Model { get; }
@@ -36,12 +34,12 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
     internal WordPieceTokenizer Tokenizer => _tokenizer;
 
     /// <summary>
-    /// Whether the session was created from the directory's pre-optimised file (<c>model.ort</c>, written by
-    /// <see cref="PrepareOptimizedModel"/>) rather than from model.onnx; the embeddings are the same either way.
+    /// Whether the session was created from the directory's mapped form (<c>model.mapped.onnx</c> with its weights file,
+    /// written by <see cref="PrepareOptimizedModel"/>) rather than from model.onnx; the embeddings are the same either way.
     /// </summary>
-    public bool UsesOptimizedModel => _modelBytes is not null;
+    public bool UsesOptimizedModel { get; private init; }
 
-    /// <summary>Why the pre-optimised file was not used (missing, stale, made for another runtime or CPU, …); empty when it was.</summary>
+    /// <summary>Why the mapped form was not used (missing, stale, damaged, turned off, …); empty when it was.</summary>
     public string OptimizedModelNote { get; private init; } = "";
 
     /// <summary>The model directory this embedder was loaded from.</summary>
@@ -214,7 +212,6 @@ public sealed partial class OnnxEmbedder : IEmbeddingGenerator<string, Embedding
             _disposed = true;
             DisposeScratch();
             _session.Dispose();
-            GC.KeepAlive(_modelBytes); // the session read them in place until here
         }
         finally { _lifetime.ExitWriteLock(); }
     }

@@ -89,9 +89,10 @@ public sealed class OnnxEmbedderOptions
     public bool VerifyModelHash { get; set; } = true;
 
     /// <summary>
-    /// Create the session from the model directory's pre-optimised file (<c>model.ort</c>, see
-    /// <see cref="OnnxEmbedder.PrepareOptimizedModel"/>) when it is there and valid for this model, ONNX Runtime and
-    /// CPU (default true; the embeddings are bit-identical, only start-up is shorter). Otherwise model.onnx is used.
+    /// Create the session from the model directory's mapped form (<c>model.mapped.onnx</c> and its weights file, see
+    /// <see cref="OnnxEmbedder.PrepareOptimizedModel"/>) when it is there and still fits model.onnx (default true: the
+    /// weights are mapped into memory instead of copied, so start-up is shorter and peak memory lower; the embeddings
+    /// are bit-identical). Otherwise model.onnx is used.
     /// </summary>
     public bool UseOptimizedModel { get; set; } = true;
 

@@ -1,77 +1,65 @@
-using System.Runtime.InteropServices;
-using System.Runtime.Intrinsics.X86;
+using System.Globalization;
 using System.Security.Cryptography;
 using System.Text.Json;
 using System.Text.Json.Serialization;
+using Google.Protobuf;
 using Microsoft.ML.OnnxRuntime;
+using Onnx;
 
 namespace TaskPhrase.Onnx;
 
 /// <summary>
-/// The pre-optimised form of a model directory's <c>model.onnx</c>: ONNX Runtime's own graph after its
-/// optimisations (<c>ORT_ENABLE_ALL</c>), saved in the ORT format as <c>model.ort</c>, with a record
-/// (<c>model.ort.json</c>) of what it was made from and where it is valid. Loading it skips the graph optimisation
-/// at start-up (session creation about 0.36 s → 0.25 s on the benchmark machine, docs/benchmarks.md) and gives
-/// bit-identical outputs: <see cref="Write"/> refuses to keep a file whose embeddings differ from the source model's
-/// in any bit. The saved graph may hold CPU-specific choices (ONNX Runtime warns so at the optimisation level used),
-/// so the record names the ONNX Runtime version and the CPU's instruction-set extensions, and a file made for other
-/// ones is ignored. The source's identity (SHA-256) stays the model's identity: an index built either way matches.
+/// The mapped form of a model directory's <c>model.onnx</c>: the same graph and the same weights, but with every large
+/// initializer moved to a side file (<c>model.mapped.data</c>, each tensor at a 64 KiB-aligned offset) that the small
+/// graph file <c>model.mapped.onnx</c> points to through the standard ONNX external-data fields. ONNX Runtime maps such
+/// files into memory instead of copying them: session creation on the benchmark machine fell from about 0.24 s to
+/// 0.14 s and the bare session's peak resident memory from 194 MiB to 112–119 MiB (the word-embedding table, half of
+/// the file, is only touched row by row), with the same forward-pass speed (docs/benchmarks.md). A record
+/// (<c>model.mapped.json</c>) ties both files to the source model by size, write time and SHA-256 and carries the
+/// files' own SHA-256, which every load checks beside session creation. <see cref="Write"/> keeps the form only if its
+/// embeddings equal the source model's bit for bit. Nothing in it depends on the CPU or the ONNX Runtime version (the
+/// graph is unchanged; ONNX Runtime optimises it at load as it does model.onnx). The source's identity (SHA-256) stays
+/// the model's identity: an index built either way matches.
 /// </summary>
 internal static class OptimizedModel
 {
-    /// <summary>The pre-optimised model file, beside model.onnx.</summary>
-    public const string FileName = "model.ort";
+    /// <summary>The graph file, beside model.onnx.</summary>
+    public const string FileName = "model.mapped.onnx";
 
-    /// <summary>The record of how and for what the file was made, beside model.onnx.</summary>
-    public const string RecordFileName = "model.ort.json";
+    /// <summary>The weights file the graph refers to, beside model.onnx.</summary>
+    public const string DataFileName = "model.mapped.data";
 
-    /// <summary>Bumped when the record or the way the file is made changes; other formats are ignored.</summary>
-    public const int Format = 1;
+    /// <summary>The record of what the files were made from, beside model.onnx.</summary>
+    public const string RecordFileName = "model.mapped.json";
 
-    /// <summary>What <see cref="TryOpen"/> found: the file's bytes (pinned: ONNX Runtime reads them in place) and its record.</summary>
-    internal sealed record Opened(byte[] Bytes, OptimizedModelRecord Record);
-
-    /// <summary>ONNX Runtime's native version string.</summary>
-    public static string RuntimeVersion => OrtEnv.Instance().GetVersionString();
+    /// <summary>Bumped when the record or the way the files are made changes; other formats are ignored.</summary>
+    public const int Format = 2;
 
     /// <summary>
-    /// The processor architecture and the instruction-set extensions that ONNX Runtime's CPU kernels and graph
-    /// transformers choose by (x64: AVX, AVX2, FMA, AVX-512 F/BW/VL/DQ, VNNI; Arm64: AdvSIMD, dot product).
+    /// Offsets of external tensors are multiples of this: ONNX Runtime maps a tensor only when its offset is a multiple
+    /// of the system's allocation granularity (4 KiB pages on Linux, 64 KiB on Windows).
     /// </summary>
-    public static string CpuSignature
-    {
-        get
-        {
-            var parts = new List<string> { RuntimeInformation.ProcessArchitecture.ToString().ToLowerInvariant() };
-            void Add(bool supported, string name) { if (supported) parts.Add(name); }
-            Add(Avx.IsSupported, "avx");
-            Add(Avx2.IsSupported, "avx2");
-            Add(Fma.IsSupported, "fma");
-            Add(Avx512F.IsSupported, "avx512f");
-            Add(Avx512BW.IsSupported, "avx512bw");
-            Add(Avx512DQ.IsSupported, "avx512dq");
-            Add(Avx512F.VL.IsSupported, "avx512vl");
-            Add(OnnxEmbedder.HasVnni(), "vnni");
-            Add(System.Runtime.Intrinsics.Arm.AdvSimd.IsSupported, "advsimd");
-            Add(System.Runtime.Intrinsics.Arm.Dp.IsSupported, "dotprod");
-            return string.Join('+', parts);
-        }
-    }
+    public const int Alignment = 65536;
 
-    /// <summary>The session settings that change the optimised graph or its kernels (the thread count does neither).</summary>
-    public static string SessionKey(ModelCard card)
-        => "level=all;x64quantprecision=" + (card.IsQuantized && OnnxEmbedder.NeedsX64QuantPrecision ? "1" : "0");
+    /// <summary>Initializers at least this large go to the side file; smaller ones (biases, norms) stay in the graph.</summary>
+    public const int MinExternalBytes = 16384;
+
+    /// <summary>Files of an earlier form (the ORT-format model of format 1), removed when the mapped form is written.</summary>
+    private static readonly string[] Legacy = ["model.ort", "model.ort.json"];
+
+    /// <summary>What <see cref="TryOpen"/> found: the graph file to create the session from, and its record.</summary>
+    internal sealed record Opened(string GraphPath, string DataPath, OptimizedModelRecord Record);
 
     /// <summary>
-    /// The pre-optimised file of <paramref name="directory"/> when its record is readable and fits this source model,
-    /// card, ONNX Runtime and CPU; otherwise null with the reason in <paramref name="whyNot"/> (no file is a reason too).
-    /// The file's bytes are read into a pinned array; their SHA-256 is <em>not</em> checked here (the caller hashes
-    /// them beside session creation and compares with <see cref="OptimizedModelRecord.Sha256"/>).
+    /// The mapped form of <paramref name="directory"/> when its record is readable and fits this source model and card
+    /// and both files have the recorded sizes; otherwise null with the reason in <paramref name="whyNot"/> (no files is a
+    /// reason too). The files' hashes are <em>not</em> checked here (<see cref="Verify"/> does, beside session creation).
     /// </summary>
     public static Opened? TryOpen(string directory, ModelCard card, out string whyNot)
     {
-        string recordPath = Path.Combine(directory, RecordFileName), filePath = Path.Combine(directory, FileName);
-        if (!File.Exists(recordPath) || !File.Exists(filePath))
+        string recordPath = Path.Combine(directory, RecordFileName);
+        string graphPath = Path.Combine(directory, FileName), dataPath = Path.Combine(directory, DataFileName);
+        if (!File.Exists(recordPath) || !File.Exists(graphPath) || !File.Exists(dataPath))
         {
             whyNot = $"no {FileName} beside model.onnx (taskphrase prepare writes one)";
             return null;
@@ -84,111 +72,148 @@ internal static class OptimizedModel
             return null;
         }
         var source = new FileInfo(Path.Combine(directory, "model.onnx"));
+        long graphLength = new FileInfo(graphPath).Length, dataLength = new FileInfo(dataPath).Length;
         whyNot = record switch
         {
             null => $"{recordPath} is empty",
             { Format: not Format } => $"{recordPath} has format {record.Format}, this version reads {Format}",
             _ when record.SourceLength != source.Length || record.SourceWriteTimeUtcTicks != source.LastWriteTimeUtc.Ticks
-                => "model.onnx changed after model.ort was written",
+                => $"model.onnx changed after {FileName} was written",
             _ when card.ModelSha256 is { Length: > 0 } expected && !string.Equals(expected, record.SourceSha256, StringComparison.OrdinalIgnoreCase)
-                => $"model.ort was made from a model with SHA-256 {record.SourceSha256}, the card records {card.ModelSha256}",
-            _ when record.Runtime != RuntimeVersion => $"model.ort was made by ONNX Runtime {record.Runtime}, this is {RuntimeVersion}",
-            _ when record.Cpu != CpuSignature => $"model.ort was made on a CPU with {record.Cpu}, this one has {CpuSignature}",
-            _ when record.Session != SessionKey(card) => $"model.ort was made with session settings {record.Session}, these are {SessionKey(card)}",
+                => $"{FileName} was made from a model with SHA-256 {record.SourceSha256}, the card records {card.ModelSha256}",
+            _ when graphLength != record.GraphLength => $"{graphPath} has {graphLength} bytes, its record says {record.GraphLength}",
+            _ when dataLength != record.DataLength => $"{dataPath} has {dataLength} bytes, its record says {record.DataLength}",
             _ => "",
         };
-        if (whyNot.Length > 0) return null;
-        try
-        {
-            using var handle = File.OpenHandle(filePath, FileMode.Open, FileAccess.Read, FileShare.Read, FileOptions.SequentialScan);
-            long length = RandomAccess.GetLength(handle);
-            if (length != record!.Length || length > int.MaxValue)
-            {
-                whyNot = $"{filePath} has {length} bytes, its record says {record.Length}";
-                return null;
-            }
-            // Pinned: ONNX Runtime keeps pointers into these bytes for the session's lifetime.
-            var bytes = GC.AllocateUninitializedArray<byte>((int)length, pinned: true);
-            for (int read = 0, n; read < bytes.Length; read += n)
-            {
-                n = RandomAccess.Read(handle, bytes.AsSpan(read), read);
-                if (n == 0) { whyNot = $"{filePath} ended early"; return null; }
-            }
-            return new Opened(bytes, record);
-        }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-        {
-            whyNot = $"{filePath} is unreadable ({e.Message})";
-            return null;
-        }
-    }
-
-    /// <summary>Session options that read an ORT-format model in place from the bytes given to the session.</summary>
-    public static void UseBytesInPlace(SessionOptions options)
-    {
-        options.AddSessionConfigEntry("session.load_model_format", "ORT");
-        options.AddSessionConfigEntry("session.use_ort_model_bytes_directly", "1");
-        options.AddSessionConfigEntry("session.use_ort_model_bytes_for_initializers", "1");
+        return whyNot.Length > 0 ? null : new Opened(graphPath, dataPath, record!);
     }
 
     /// <summary>
-    /// Writes <c>model.ort</c> and its record into the model directory, replacing older ones, after checking that the
-    /// embeddings through it equal the source model's bit for bit on the project's phrase sets, one at a time and in
-    /// batches. The record is written last (by rename), so a reader never sees a half-written pair.
+    /// Hashes both files (read through the page cache; nothing of them stays in this process's memory) and returns
+    /// an empty string when they match the record, else what differs.
     /// </summary>
-    /// <exception cref="InvalidDataException">The model does not load, or the optimised file's embeddings differ (nothing is kept).</exception>
+    public static string Verify(Opened opened)
+    {
+        string graph, data;
+        try
+        {
+            graph = HashFile(opened.GraphPath);
+            data = HashFile(opened.DataPath);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            return $"{FileName} or {DataFileName} became unreadable ({e.Message})";
+        }
+        if (!string.Equals(graph, opened.Record.GraphSha256, StringComparison.OrdinalIgnoreCase))
+            return $"{FileName} has SHA-256 {graph}, its record says {opened.Record.GraphSha256}";
+        if (!string.Equals(data, opened.Record.DataSha256, StringComparison.OrdinalIgnoreCase))
+            return $"{DataFileName} has SHA-256 {data}, its record says {opened.Record.DataSha256}";
+        return "";
+    }
+
+    /// <summary>
+    /// SHA-256 of a file, read through a small buffer (the page cache holds the file, this process does not). SHA-256
+    /// runs in the platform's native library, so it costs about 90 ms for the 87 MiB weights even in a cold process;
+    /// a managed non-cryptographic hash was tried and was slower there, its code not yet compiled with optimisation.
+    /// </summary>
+    private static string HashFile(string path)
+    {
+        using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16, FileOptions.SequentialScan);
+        return Convert.ToHexStringLower(SHA256.HashData(stream));
+    }
+
+    /// <summary>
+    /// Writes the mapped form and its record into the model directory, replacing older ones (and removing an earlier
+    /// form's files), after checking that the embeddings through it equal the source model's bit for bit on the
+    /// project's phrase sets, one at a time and in batches. The files are made in a staging folder inside the
+    /// directory and moved into place with the record last, so a reader never trusts a half-written set.
+    /// </summary>
+    /// <exception cref="InvalidDataException">The model does not load or parse, or the mapped form's embeddings differ (nothing is kept).</exception>
     public static OptimizedModelReport Write(string directory, ModelCard card, OnnxEmbedderOptions options)
     {
         string modelPath = Path.Combine(directory, "model.onnx");
-        string filePath = Path.Combine(directory, FileName), recordPath = Path.Combine(directory, RecordFileName);
-        string stamp = $".{Environment.ProcessId}.{Guid.NewGuid():N}.tmp";
-        string tmpFile = filePath + stamp, tmpRecord = recordPath + stamp;
         var source = new FileInfo(modelPath);
         long sourceLength = source.Length, sourceTicks = source.LastWriteTimeUtc.Ticks;
+        var sourceOptions = options.Clone();
+        sourceOptions.UseOptimizedModel = false;
+        using var reference = OnnxEmbedder.CreateCore(directory, card, sourceOptions);
+
+        string staging = Path.Combine(directory, $".prepare-{Environment.ProcessId}-{Guid.NewGuid():N}");
+        Directory.CreateDirectory(staging);
         try
         {
-            using (var sessionOptions = OnnxEmbedder.SessionOptionsFor(card, options))
-            {
-                sessionOptions.AddSessionConfigEntry("session.save_model_format", "ORT");
-                // ONNX Runtime warns that the saved graph may be CPU-specific; the record's CPU signature handles that.
-                sessionOptions.LogSeverityLevel = OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR;
-                sessionOptions.OptimizedModelFilePath = tmpFile;
-                try { using var saving = new InferenceSession(modelPath, sessionOptions); }
-                catch (OnnxRuntimeException e) { throw new InvalidDataException($"{modelPath}: ONNX Runtime could not load the model ({e.Message}).", e); }
-            }
-            var sourceOptions = options.Clone();
-            sourceOptions.UseOptimizedModel = false;
-            using var reference = OnnxEmbedder.CreateCore(directory, card, sourceOptions);
-            byte[] bytes = File.ReadAllBytes(tmpFile);
+            string graphPath = Path.Combine(staging, FileName), dataPath = Path.Combine(staging, DataFileName);
+            int moved = Externalize(modelPath, graphPath, dataPath);
             var record = new OptimizedModelRecord
             {
                 Format = Format,
                 SourceSha256 = reference.Model.Sha256,
                 SourceLength = sourceLength,
                 SourceWriteTimeUtcTicks = sourceTicks,
-                Runtime = RuntimeVersion,
-                Cpu = CpuSignature,
-                Session = SessionKey(card),
-                Length = bytes.Length,
-                Sha256 = Convert.ToHexStringLower(SHA256.HashData(bytes)),
+                GraphLength = new FileInfo(graphPath).Length,
+                GraphSha256 = HashFile(graphPath),
+                DataLength = new FileInfo(dataPath).Length,
+                DataSha256 = HashFile(dataPath),
+                ExternalTensors = moved,
             };
-            var pinned = GC.AllocateUninitializedArray<byte>(bytes.Length, pinned: true);
-            bytes.CopyTo(pinned, 0);
-            using var candidate = OnnxEmbedder.CreateCore(directory, card, options, new Opened(pinned, record));
             var phrases = Quantization.QuantizationPhrases.Calibration.Concat(Quantization.QuantizationPhrases.HeldOut).ToList();
-            int differing = CountDiffering(reference, candidate, phrases);
-            if (differing > 0)
-                throw new InvalidDataException($"{modelPath}: the pre-optimised model's embeddings differ from the source model's for {differing} of {phrases.Count * 2} embeddings (one at a time and batched); nothing was written. Start-up uses model.onnx.");
-            File.WriteAllBytes(tmpRecord, JsonSerializer.SerializeToUtf8Bytes(record, RecordJson));
-            File.Move(tmpFile, filePath, overwrite: true);
-            File.Move(tmpRecord, recordPath, overwrite: true);
-            return new OptimizedModelReport(filePath, record.Length, phrases.Count, record.Runtime, record.Cpu);
+            using (var candidate = OnnxEmbedder.CreateCore(directory, card, options, new Opened(graphPath, dataPath, record)))
+            {
+                if (!candidate.UsesOptimizedModel)
+                    throw new InvalidDataException($"{modelPath}: ONNX Runtime did not load the mapped form ({candidate.OptimizedModelNote}); nothing was written. Start-up uses model.onnx.");
+                int differing = CountDiffering(reference, candidate, phrases);
+                if (differing > 0)
+                    throw new InvalidDataException($"{modelPath}: the mapped form's embeddings differ from the source model's for {differing} of {phrases.Count * 2} embeddings (one at a time and batched); nothing was written. Start-up uses model.onnx.");
+            }
+            string recordPath = Path.Combine(staging, RecordFileName);
+            File.WriteAllBytes(recordPath, JsonSerializer.SerializeToUtf8Bytes(record, RecordJson));
+            // Record first out of the way, then the files, then the record: a reader in between finds no record or a
+            // record whose hashes do not match, and uses model.onnx.
+            File.Delete(Path.Combine(directory, RecordFileName));
+            File.Move(dataPath, Path.Combine(directory, DataFileName), overwrite: true);
+            File.Move(graphPath, Path.Combine(directory, FileName), overwrite: true);
+            File.Move(recordPath, Path.Combine(directory, RecordFileName), overwrite: true);
+            foreach (var legacy in Legacy) File.Delete(Path.Combine(directory, legacy));
+            return new OptimizedModelReport(Path.Combine(directory, FileName), Path.Combine(directory, DataFileName), record.GraphLength + record.DataLength, moved, phrases.Count);
         }
         finally
         {
-            foreach (var tmp in new[] { tmpFile, tmpRecord })
-                try { File.Delete(tmp); } catch (IOException) { } catch (UnauthorizedAccessException) { }
+            try { Directory.Delete(staging, recursive: true); } catch (IOException) { } catch (UnauthorizedAccessException) { }
         }
+    }
+
+    /// <summary>
+    /// Copies <paramref name="modelPath"/> to <paramref name="graphPath"/> with every initializer of at least
+    /// <see cref="MinExternalBytes"/> raw bytes moved to <paramref name="dataPath"/> at an <see cref="Alignment"/>-aligned
+    /// offset (ONNX external data: <c>location</c>, <c>offset</c>, <c>length</c>). Returns how many were moved.
+    /// </summary>
+    internal static int Externalize(string modelPath, string graphPath, string dataPath)
+    {
+        ModelProto model;
+        try { model = ModelProto.Parser.ParseFrom(File.ReadAllBytes(modelPath)); }
+        catch (InvalidProtocolBufferException e) { throw new InvalidDataException($"{modelPath}: not a readable ONNX model ({e.Message}).", e); }
+        int moved = 0;
+        using (var data = new FileStream(dataPath, FileMode.CreateNew, FileAccess.Write))
+        {
+            foreach (var tensor in model.Graph.Initializer)
+            {
+                if (tensor.DataLocation == TensorProto.Types.DataLocation.External || tensor.RawData.Length < MinExternalBytes) continue;
+                long offset = (data.Length + Alignment - 1) / Alignment * Alignment;
+                data.SetLength(offset);
+                data.Position = offset;
+                tensor.RawData.WriteTo(data);
+                long length = tensor.RawData.Length;
+                tensor.RawData = ByteString.Empty;
+                tensor.DataLocation = TensorProto.Types.DataLocation.External;
+                tensor.ExternalData.Clear();
+                tensor.ExternalData.Add(new StringStringEntryProto { Key = "location", Value = DataFileName });
+                tensor.ExternalData.Add(new StringStringEntryProto { Key = "offset", Value = offset.ToString(CultureInfo.InvariantCulture) });
+                tensor.ExternalData.Add(new StringStringEntryProto { Key = "length", Value = length.ToString(CultureInfo.InvariantCulture) });
+                moved++;
+            }
+        }
+        File.WriteAllBytes(graphPath, model.ToByteArray());
+        return moved;
     }
 
     /// <summary>Embeddings (single and batched) whose bits differ between the two embedders.</summary>
@@ -213,24 +238,24 @@ internal static class OptimizedModel
     private static readonly JsonSerializerOptions RecordJson = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
 }
 
-/// <summary>The record beside a pre-optimised model file (<c>model.ort.json</c>).</summary>
+/// <summary>The record beside the mapped form (<c>model.mapped.json</c>).</summary>
 internal sealed record OptimizedModelRecord
 {
     [JsonPropertyName("format")] public int Format { get; init; }
     [JsonPropertyName("source_sha256")] public string SourceSha256 { get; init; } = "";
     [JsonPropertyName("source_length")] public long SourceLength { get; init; }
     [JsonPropertyName("source_write_time_utc_ticks")] public long SourceWriteTimeUtcTicks { get; init; }
-    [JsonPropertyName("onnx_runtime")] public string Runtime { get; init; } = "";
-    [JsonPropertyName("cpu")] public string Cpu { get; init; } = "";
-    [JsonPropertyName("session")] public string Session { get; init; } = "";
-    [JsonPropertyName("length")] public long Length { get; init; }
-    [JsonPropertyName("sha256")] public string Sha256 { get; init; } = "";
+    [JsonPropertyName("graph_length")] public long GraphLength { get; init; }
+    [JsonPropertyName("graph_sha256")] public string GraphSha256 { get; init; } = "";
+    [JsonPropertyName("data_length")] public long DataLength { get; init; }
+    [JsonPropertyName("data_sha256")] public string DataSha256 { get; init; } = "";
+    [JsonPropertyName("external_tensors")] public int ExternalTensors { get; init; }
 }
 
 /// <summary>What <see cref="OnnxEmbedder.PrepareOptimizedModel"/> wrote.</summary>
-/// <param name="Path">The pre-optimised model file (<c>model.ort</c>).</param>
-/// <param name="Bytes">Its size.</param>
+/// <param name="Path">The graph file (<c>model.mapped.onnx</c>).</param>
+/// <param name="DataPath">The weights file it maps (<c>model.mapped.data</c>).</param>
+/// <param name="Bytes">Both files' size together.</param>
+/// <param name="ExternalTensors">Initializers moved to the weights file.</param>
 /// <param name="ComparedPhrases">Phrases whose embeddings (one at a time and batched) were checked bit for bit against the source model.</param>
-/// <param name="Runtime">The ONNX Runtime version it is valid for.</param>
-/// <param name="Cpu">The CPU signature it is valid for.</param>
-public sealed record OptimizedModelReport(string Path, long Bytes, int ComparedPhrases, string Runtime, string Cpu);
+public sealed record OptimizedModelReport(string Path, string DataPath, long Bytes, int ExternalTensors, int ComparedPhrases);

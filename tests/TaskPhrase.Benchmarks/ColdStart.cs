@@ -20,14 +20,16 @@ internal static class ColdStart
 
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "runs", "rebuild", "cli");
+        var a = new HarnessArguments(args, "runs", "rebuild", "cli", "model");
         int runs = Math.Max(1, a.Int("runs", 7));
         string cli = a.Text("cli", Path.Combine(BenchmarkPaths.RepoRoot, "src", "TaskPhrase.Cli", "bin", "Release", "net10.0", "TaskPhrase.Cli.dll"));
         if (!File.Exists(cli)) throw new FileNotFoundException($"{cli} not found; build it first: dotnet build src/TaskPhrase.Cli -c Release.");
-        string index = Path.Combine(BenchmarkPaths.Scratch, "coldstart-1000.tpx");
+        // --model DIR: another model directory (e.g. the int8 variant) for both the index and the CLI.
+        string model = a.Text("model", "");
+        string index = Path.Combine(BenchmarkPaths.Scratch, model.Length == 0 ? "coldstart-1000.tpx" : $"coldstart-1000-{Path.GetFileName(Path.TrimEndingDirectorySeparator(Path.GetFullPath(model)))}.tpx");
         if (!File.Exists(index) || a.Flag("rebuild"))
         {
-            using var embedder = OnnxEmbedder.Create(BenchmarkPaths.ModelDirectory);
+            using var embedder = OnnxEmbedder.Create(model.Length == 0 ? BenchmarkPaths.ModelDirectory : model);
             TaskIndexBuilder.BuildAsync(index, SyntheticRegistry.Load(100, 10), embedder).GetAwaiter().GetResult();
         }
         bool haveTime = File.Exists("/usr/bin/time");
@@ -36,7 +38,8 @@ internal static class ColdStart
         Console.WriteLine("| process | median wall | fastest | slowest | peak RSS (max) |");
         Console.WriteLine("| --- | ---: | ---: | ---: | ---: |");
         Measure("taskphrase --version", cli, ["--version"], runs, haveTime);
-        Measure("taskphrase resolve --index (1 command)", cli, ["resolve", "--index", index, Command], runs, haveTime);
+        string[] resolve = model.Length == 0 ? ["resolve", "--index", index, Command] : ["resolve", "--index", index, "--model", model, Command];
+        Measure($"taskphrase resolve --index (1 command{(model.Length == 0 ? "" : ", " + model)})", cli, resolve, runs, haveTime);
     }
 
     private static void Measure(string name, string cli, string[] arguments, int runs, bool haveTime)

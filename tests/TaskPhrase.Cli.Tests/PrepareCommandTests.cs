@@ -3,7 +3,7 @@ using TaskPhrase.Onnx;
 
 namespace TaskPhrase.Cli.Tests;
 
-/// <summary><c>taskphrase prepare</c> in-process: writes model.ort and its record, which the next load uses; user errors exit 2.</summary>
+/// <summary><c>taskphrase prepare</c> in-process: writes the mapped form and its record, which the next load uses; user errors exit 2.</summary>
 [Collection(CliCollection.Name)]
 [Trait("tier", "slow")]
 public sealed class PrepareCommandTests(CliFixture cli) : IDisposable
@@ -23,8 +23,10 @@ public sealed class PrepareCommandTests(CliFixture cli) : IDisposable
 
         Assert.True(exit == 0, error);
         var json = JsonNode.Parse(output)!;
-        Assert.Equal(Path.Combine(_dir, "model.ort"), (string?)json["path"]);
-        Assert.Equal(new FileInfo(Path.Combine(_dir, "model.ort")).Length, (long)json["bytes"]!);
+        Assert.Equal(Path.Combine(_dir, "model.mapped.onnx"), (string?)json["path"]);
+        Assert.Equal(Path.Combine(_dir, "model.mapped.data"), (string?)json["data_path"]);
+        Assert.Equal(new FileInfo(Path.Combine(_dir, "model.mapped.onnx")).Length + new FileInfo(Path.Combine(_dir, "model.mapped.data")).Length, (long)json["bytes"]!);
+        Assert.True((int)json["external_tensors"]! > 30);
         Assert.True((bool)json["identical"]!);
         Assert.True((int)json["compared_phrases"]! > 100);
         using var embedder = OnnxEmbedder.Create(_dir);

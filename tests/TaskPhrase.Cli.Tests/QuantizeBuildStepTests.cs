@@ -22,7 +22,7 @@ public sealed class QuantizeBuildStepTests(CliFixture cli) : IDisposable
         string fromBuild = Path.Combine(_dir, "build");
         var (exit, output) = RunTarget(fromBuild);
         Assert.True(exit == 0, output);
-        foreach (var name in new[] { "model.onnx", "vocab.txt", "model.json", "model.ort", "model.ort.json" })
+        foreach (var name in new[] { "model.onnx", "vocab.txt", "model.json", "model.mapped.onnx", "model.mapped.data", "model.mapped.json" })
             Assert.True(File.Exists(Path.Combine(fromBuild, name)), $"{name} missing; MSBuild said:\n{output}");
 
         string fromVerb = Path.Combine(_dir, "verb");

@@ -6,8 +6,9 @@ using TaskPhrase.Onnx;
 namespace TaskPhrase.Cli.Commands;
 
 /// <summary>
-/// <c>taskphrase prepare</c>: writes the pre-optimised ONNX Runtime form of a model directory (<c>model.ort</c>) so
-/// later start-ups skip the graph optimisation; the embeddings stay the same bit for bit (checked before writing).
+/// <c>taskphrase prepare</c>: writes the mapped form of a model directory (<c>model.mapped.onnx</c> and
+/// <c>model.mapped.data</c>) so later start-ups map the weights instead of copying them; the embeddings stay the same
+/// bit for bit (checked before writing).
 /// </summary>
 internal static class PrepareCommand
 {
@@ -16,7 +17,7 @@ internal static class PrepareCommand
         var model = CommonOptions.Model();
         var json = CommonOptions.Json();
         var command = new Command("prepare",
-            "Write the pre-optimised ONNX Runtime form of a model directory (model.ort) for a shorter start-up; refuses one whose embeddings differ in any bit.")
+            "Write the mapped form of a model directory (model.mapped.onnx + model.mapped.data: weights mapped into memory, not copied) for a shorter start-up and less memory; refuses one whose embeddings differ in any bit.")
         {
             model, json,
         };
@@ -29,11 +30,11 @@ internal static class PrepareCommand
                 using var writer = new Utf8JsonWriter(CliRunner.StdoutStream(context));
                 writer.WriteStartObject();
                 writer.WriteString("path", report.Path);
+                writer.WriteString("data_path", report.DataPath);
                 writer.WriteNumber("bytes", report.Bytes);
+                writer.WriteNumber("external_tensors", report.ExternalTensors);
                 writer.WriteNumber("compared_phrases", report.ComparedPhrases);
                 writer.WriteBoolean("identical", true);
-                writer.WriteString("onnx_runtime", report.Runtime);
-                writer.WriteString("cpu", report.Cpu);
                 writer.WriteEndObject();
                 writer.Flush();
                 CliRunner.EndJson(context);
@@ -41,8 +42,7 @@ internal static class PrepareCommand
             else
             {
                 context.Out.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                    $"wrote {report.Path} ({report.Bytes / 1048576.0:0.0} MiB); embeddings identical to model.onnx's bit for bit on {report.ComparedPhrases} phrases, one at a time and batched"));
-                context.Out.WriteLine($"valid for ONNX Runtime {report.Runtime} on a CPU with {report.Cpu}; elsewhere model.onnx is used");
+                    $"wrote {report.Path} and {Path.GetFileName(report.DataPath)} ({report.Bytes / 1048576.0:0.0} MiB, {report.ExternalTensors} tensors mapped); embeddings identical to model.onnx's bit for bit on {report.ComparedPhrases} phrases, one at a time and batched"));
             }
             return ExitCodes.Success;
         }));

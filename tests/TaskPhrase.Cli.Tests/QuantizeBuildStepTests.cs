@@ -1,5 +1,3 @@
-using System.Diagnostics;
-using System.Reflection;
 
 namespace TaskPhrase.Cli.Tests;
 
@@ -40,33 +38,8 @@ public sealed class QuantizeBuildStepTests(CliFixture cli) : IDisposable
 
     private static (int Exit, string Output) RunTarget(string output)
     {
-        string project = Path.Combine(RepoRoot(), "src", "TaskPhrase.Cli", "TaskPhrase.Cli.csproj");
-        var start = new ProcessStartInfo(Environment.GetEnvironmentVariable("DOTNET_HOST_PATH") is { Length: > 0 } host ? host : "dotnet")
-        {
-            RedirectStandardOutput = true,
-            RedirectStandardError = true,
-            UseShellExecute = false,
-        };
-        foreach (var a in new[] { "msbuild", project, "-t:TaskPhraseQuantizeModel", $"-p:Configuration={Configuration}", "-p:TaskPhraseInt8=true",
-                     $"-p:TaskPhraseInt8Output={output}", "-nologo", "-v:n", "-nodeReuse:false" })
-            start.ArgumentList.Add(a);
-        using var process = Process.Start(start)!;
-        var stdout = process.StandardOutput.ReadToEndAsync();
-        var stderr = process.StandardError.ReadToEndAsync();
-        if (!process.WaitForExit(TimeSpan.FromMinutes(3)))
-        {
-            process.Kill(entireProcessTree: true);
-            return (-1, "MSBuild did not finish within 3 minutes");
-        }
-        return (process.ExitCode, stdout.Result + stderr.Result);
-    }
-
-    private static string Configuration => typeof(QuantizeBuildStepTests).Assembly.GetCustomAttribute<AssemblyConfigurationAttribute>()?.Configuration ?? "Debug";
-
-    private static string RepoRoot()
-    {
-        for (var dir = new DirectoryInfo(AppContext.BaseDirectory); dir is not null; dir = dir.Parent)
-            if (File.Exists(Path.Combine(dir.FullName, "TaskPhrase.sln"))) return dir.FullName;
-        throw new DirectoryNotFoundException($"TaskPhrase.sln not found above {AppContext.BaseDirectory}.");
+        string project = Path.Combine(DotnetProcess.RepoRoot(), "src", "TaskPhrase.Cli", "TaskPhrase.Cli.csproj");
+        return DotnetProcess.Run(TimeSpan.FromMinutes(3), "msbuild", project, "-t:TaskPhraseQuantizeModel", $"-p:Configuration={DotnetProcess.Configuration}",
+            "-p:TaskPhraseInt8=true", $"-p:TaskPhraseInt8Output={output}", "-nologo", "-v:n", "-nodeReuse:false");
     }
 }

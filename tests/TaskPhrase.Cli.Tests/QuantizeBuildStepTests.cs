@@ -1,4 +1,3 @@
-
 namespace TaskPhrase.Cli.Tests;
 
 /// <summary>

@@ -12,7 +12,8 @@ namespace TaskPhrase.Benchmarks;
 /// <c>--real</c> (or <c>--clinc150 FILE</c>) uses real embeddings instead (all-MiniLM-L6-v2 of CLINC150, Larson et al., 2019): phrases
 /// are training queries, ten consecutive queries of one intent per task (1,000 phrases: the first ten of 100 intents;
 /// more: each intent's queries in groups of ten, up to 15,000), and each round's query is the next of 300 validation
-/// queries. The embeddings are computed once and kept in the scratch folder.
+/// queries. The embeddings are computed once and kept in the scratch folder. <c>--diagnose</c> first times the 8-bit
+/// phrase screen's bounds alone and counts the tasks it leaves to score exactly (for 5 candidates).
 /// </summary>
 internal static class SearchHarness
 {
@@ -21,7 +22,7 @@ internal static class SearchHarness
 
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "sizes", "rounds", "real", "clinc150");
+        var a = new HarnessArguments(args, "sizes", "rounds", "real", "clinc150", "diagnose");
         bool real = a.Flag("real") || a.Flag("clinc150");
         var sizes = real ? a.Ints("sizes", 1_000, 10_000) : a.Ints("sizes", 1_000, 10_000, 100_000);
         var clinc = real ? RealEmbeddings.Load(a.Flag("clinc150") ? a.Text("clinc150", "") : "") : null;
@@ -45,6 +46,26 @@ internal static class SearchHarness
             var registry = SyntheticRegistry.Direct(phrases / PhrasesPerTask, PhrasesPerTask);
             var generator = new HashedEmbeddingGenerator(Dimensions) { Query = query };
 
+            if (a.Flag("diagnose"))
+            {
+                // How much of a screened best-phrase rank is the screen itself, and how many tasks it leaves to score exactly.
+                var screen = PhraseScreen.Build(matrix, Dimensions);
+                int tasks = phrases / PhrasesPerTask;
+                var phraseTask = Enumerable.Range(0, phrases).Select(r => r / PhrasesPerTask).ToArray();
+                var lower = new double[tasks];
+                var upper = new double[tasks];
+                var screenSamples = new Samples("screen bounds only", rounds);
+                long candidates = 0;
+                for (int i = 0; i < 200; i++) screen.Bounds(query, phraseTask, lower, upper); // past tiered compilation
+                for (int i = 0; i < rounds; i++)
+                {
+                    clinc?.Query(i).CopyTo(query);
+                    screenSamples.Time(() => screen.Bounds(query, phraseTask, lower, upper));
+                    double fifth = lower.OrderDescending().ElementAt(Math.Min(4, tasks - 1));
+                    candidates += upper.Count(u => u >= fifth);
+                }
+                Console.WriteLine($"{phrases:N0} phrases: {screenSamples.Row()} tasks scored exactly (count 5): {candidates / (double)rounds:0.0} of {tasks}");
+            }
             var names = new List<string> { "brute force (baseline)" };
             var ops = new List<Action>
             {

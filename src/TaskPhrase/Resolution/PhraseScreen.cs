@@ -119,11 +119,16 @@ internal sealed class PhraseScreen
         }
         double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
         bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
+        Span<int> dots = stackalloc int[4];
         for (int r = 0; r < Rows; r++)
         {
-            var row = _q.AsSpan(r * dims, dims);
-            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop.
-            int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
+            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop. Four rows at a time where VNNI is there
+            // (four independent accumulator chains sharing the query loads), else one.
+            int k = r & 3;
+            if (vnni && k == 0 && r + 4 <= Rows) DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims), dots);
+            int dot = !vnni ? DotInt8(_q.AsSpan(r * dims, dims), p)
+                : r + 4 - k <= Rows ? dots[k] - 128 * _qSum[r]
+                : DotShiftedVnni(shifted, _q.AsSpan(r * dims, dims)) - 128 * _qSum[r];
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             if (perRow)
@@ -159,6 +164,35 @@ internal sealed class PhraseScreen
         for (; i + 32 <= n; i += 32)
             acc0 = AvxVnni.MultiplyWideningAndAdd(acc0, Vector256.LoadUnsafe(ref ru, (nuint)i), Vector256.LoadUnsafe(ref rq, (nuint)i));
         return Vector256.Sum(acc0 + acc1);
+    }
+
+    /// <summary>
+    /// <see cref="DotShiftedVnni"/> for the four consecutive rows of <paramref name="rows"/> (each as long as
+    /// <paramref name="u"/>), written to <paramref name="dots"/>[0..3]: the same integers, with the query loaded once per
+    /// chunk and four independent accumulators (one VPDPBUSD chain per row).
+    /// </summary>
+    internal static void DotShiftedVnni4(ReadOnlySpan<byte> u, ReadOnlySpan<sbyte> rows, Span<int> dots)
+    {
+        int n = u.Length;
+        if (rows.Length < 4 * n || dots.Length < 4) throw new ArgumentException("Need four rows as long as the query, and four results.");
+        ref byte ru = ref MemoryMarshal.GetReference(u);
+        ref sbyte r0 = ref MemoryMarshal.GetReference(rows);
+        ref sbyte r1 = ref Unsafe.Add(ref r0, n);
+        ref sbyte r2 = ref Unsafe.Add(ref r0, 2 * n);
+        ref sbyte r3 = ref Unsafe.Add(ref r0, 3 * n);
+        Vector256<int> a0 = default, a1 = default, a2 = default, a3 = default;
+        for (int i = 0; i + 32 <= n; i += 32)
+        {
+            var x = Vector256.LoadUnsafe(ref ru, (nuint)i);
+            a0 = AvxVnni.MultiplyWideningAndAdd(a0, x, Vector256.LoadUnsafe(ref r0, (nuint)i));
+            a1 = AvxVnni.MultiplyWideningAndAdd(a1, x, Vector256.LoadUnsafe(ref r1, (nuint)i));
+            a2 = AvxVnni.MultiplyWideningAndAdd(a2, x, Vector256.LoadUnsafe(ref r2, (nuint)i));
+            a3 = AvxVnni.MultiplyWideningAndAdd(a3, x, Vector256.LoadUnsafe(ref r3, (nuint)i));
+        }
+        dots[0] = Vector256.Sum(a0);
+        dots[1] = Vector256.Sum(a1);
+        dots[2] = Vector256.Sum(a2);
+        dots[3] = Vector256.Sum(a3);
     }
 
     /// <summary>Σ q[i]·p[i], exact in 32-bit integers (|q|, |p| ≤ 127: no overflow below 133,000 dimensions).</summary>

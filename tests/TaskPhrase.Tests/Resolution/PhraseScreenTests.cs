@@ -20,7 +20,7 @@ public class PhraseScreenTests
     public void Bounds_RandomRows_HoldForEveryExactScore()
     {
         var random = new Random(17);
-        int rows = 600;
+        int rows = 603; // not a multiple of four: the last rows go through the one-row kernel
         var phrases = new float[rows * Dims];
         for (int r = 0; r < rows; r++) Gaussian(random).CopyTo(phrases.AsSpan(r * Dims));
         var screen = PhraseScreen.Build(phrases, Dims);
@@ -85,6 +85,30 @@ public class PhraseScreenTests
             Assert.Equal(expected, unshifted - 128 * qSum);
             if (System.Runtime.Intrinsics.X86.AvxVnni.IsSupported)
                 Assert.Equal(expected, PhraseScreen.DotShiftedVnni(shifted, q) - 128 * qSum);
+        }
+    }
+
+    [Fact]
+    public void DotShiftedVnni4_FourRows_EqualTheOneRowKernel()
+    {
+        // The four-row kernel shares the query loads between four accumulators; each result must be the same integer
+        // as the one-row kernel's and the plain loop's (extremes included).
+        if (!System.Runtime.Intrinsics.X86.AvxVnni.IsSupported) return; // nothing to compare with; DotInt8 is checked above
+        var random = new Random(4);
+        foreach (int n in new[] { 32, 64, 384, 1024 })
+        {
+            var rows = Enumerable.Range(0, 4 * n).Select(i => (sbyte)(i % 9 == 0 ? -127 : i % 17 == 0 ? 127 : random.Next(-127, 128))).ToArray();
+            var u = Enumerable.Range(0, n).Select(i => (byte)(i % 5 == 0 ? 255 : i % 13 == 0 ? 1 : random.Next(1, 256))).ToArray();
+            var dots = new int[4];
+            PhraseScreen.DotShiftedVnni4(u, rows, dots);
+            for (int k = 0; k < 4; k++)
+            {
+                var row = rows.AsSpan(k * n, n);
+                int plain = 0;
+                for (int i = 0; i < n; i++) plain += u[i] * row[i];
+                Assert.Equal(plain, dots[k]);
+                Assert.Equal(PhraseScreen.DotShiftedVnni(u, row), dots[k]);
+            }
         }
     }
 

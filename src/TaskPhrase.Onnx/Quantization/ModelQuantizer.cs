@@ -78,15 +78,16 @@ public static partial class ModelQuantizer
         }
 
         var plan = FindQuantizableMatMuls(model.Graph, modelPath);
-        var calibration = QuantizationPhrases.Calibration;
+        var calibration = options.CalibrationPhrases ?? QuantizationPhrases.Calibration;
         var maxima = CalibrateActivationMaxima(model, plan, source, calibration, cancellationToken);
-        int rewritten = Rewrite(model, plan, maxima, options.Alpha, cancellationToken);
+        int rewritten = Rewrite(model, plan, maxima, options.Alpha, cancellationToken, options.Variant?.Plan);
+        string method = options.Variant is { Name: var variant } ? Method + "+" + variant : Method;
         byte[] bytes = Google.Protobuf.MessageExtensions.ToByteArray(model);
         string sha = Convert.ToHexStringLower(SHA256.HashData(bytes));
 
         var info = new ModelQuantizationInfo
         {
-            Method = Method,
+            Method = method,
             Alpha = options.Alpha,
             CalibrationPhrases = calibration.Count,
             CalibrationSetSha256 = QuantizationPhrases.Sha256(calibration),
@@ -104,7 +105,7 @@ public static partial class ModelQuantizer
             ModelSha256 = sha,
             VocabSha256 = sourceCard.VocabSha256,
             Licence = sourceCard.Licence,
-            Source = $"int8 ({Method}, alpha {options.Alpha.ToString(System.Globalization.CultureInfo.InvariantCulture)}) of {sourceCard.Id}: {sourceCard.Source}",
+            Source = $"int8 ({method}, alpha {options.Alpha.ToString(System.Globalization.CultureInfo.InvariantCulture)}) of {sourceCard.Id}: {sourceCard.Source}",
             Quantization = info,
         };
 

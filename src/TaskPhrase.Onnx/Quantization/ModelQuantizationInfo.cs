@@ -9,7 +9,7 @@ namespace TaskPhrase.Onnx.Quantization;
 /// </summary>
 public sealed record ModelQuantizationInfo
 {
-    /// <summary>Method name, e.g. <c>smoothquant-int8-per-column-per-token-wide</c>.</summary>
+    /// <summary>Method name, e.g. <c>smoothquant-int8-per-column-per-token-wide-fp32-outliers</c>.</summary>
     [JsonPropertyName("method")] public required string Method { get; init; }
 
     /// <summary>SmoothQuant migration strength α (0 = no smoothing, 1 = all range moved into the weights).</summary>

@@ -9,14 +9,15 @@ namespace TaskPhrase.Onnx.Quantization;
 /// calibrated on the project's own command phrases, then per-column symmetric int8 weights for every MatMul with a
 /// constant weight, run as standard ONNX ops (<c>DynamicQuantizeLinear</c>, <c>MatMulInteger</c>, <c>Cast</c>,
 /// <c>Mul</c>) that ONNX Runtime fuses; the wide feed-forward down-projections quantise their input per token
-/// (<c>ReduceMax</c>/<c>ReduceMin</c>, per-row <c>QuantizeLinear</c>). The result is measured against the fp32 model and written only when it passes
+/// (<c>ReduceMax</c>/<c>ReduceMin</c>, per-row <c>QuantizeLinear</c>) and keep their few outlier input channels in fp32
+/// (<c>Gather</c>, a small fp32 <c>MatMul</c>, <c>Add</c>; the mixed-precision decomposition of LLM.int8(), Dettmers et al. 2022). The result is measured against the fp32 model and written only when it passes
 /// <see cref="QuantizationGates"/>. Deterministic: the same source and options give byte-identical files.
 /// </summary>
 /// <remarks>Thread-safe: no shared state; each call loads its own sessions.</remarks>
 public static partial class ModelQuantizer
 {
     /// <summary>The method name recorded in the card.</summary>
-    public const string Method = "smoothquant-int8-per-column-per-token-wide";
+    public const string Method = "smoothquant-int8-per-column-per-token-wide-fp32-outliers";
 
     /// <summary>
     /// Quantises the model in <paramref name="sourceDirectory"/> and, when the gates pass, writes <c>model.onnx</c>,
@@ -78,15 +79,16 @@ public static partial class ModelQuantizer
         }
 
         var plan = FindQuantizableMatMuls(model.Graph, modelPath);
-        var calibration = QuantizationPhrases.Calibration;
+        var calibration = options.CalibrationPhrases ?? QuantizationPhrases.Calibration;
         var maxima = CalibrateActivationMaxima(model, plan, source, calibration, cancellationToken);
-        int rewritten = Rewrite(model, plan, maxima, options.Alpha, cancellationToken);
+        int rewritten = Rewrite(model, plan, maxima, options.Alpha, cancellationToken, options.Variant?.Plan);
+        string method = options.Variant is { Name: var variant } ? Method + "+" + variant : Method;
         byte[] bytes = Google.Protobuf.MessageExtensions.ToByteArray(model);
         string sha = Convert.ToHexStringLower(SHA256.HashData(bytes));
 
         var info = new ModelQuantizationInfo
         {
-            Method = Method,
+            Method = method,
             Alpha = options.Alpha,
             CalibrationPhrases = calibration.Count,
             CalibrationSetSha256 = QuantizationPhrases.Sha256(calibration),
@@ -104,7 +106,7 @@ public static partial class ModelQuantizer
             ModelSha256 = sha,
             VocabSha256 = sourceCard.VocabSha256,
             Licence = sourceCard.Licence,
-            Source = $"int8 ({Method}, alpha {options.Alpha.ToString(System.Globalization.CultureInfo.InvariantCulture)}) of {sourceCard.Id}: {sourceCard.Source}",
+            Source = $"int8 ({method}, alpha {options.Alpha.ToString(System.Globalization.CultureInfo.InvariantCulture)}) of {sourceCard.Id}: {sourceCard.Source}",
             Quantization = info,
         };
 

@@ -40,6 +40,15 @@ public sealed class QuantizationOptions
     /// </summary>
     public string? Clinc150Path { get; init; }
 
+    /// <summary>
+    /// Measurements only: a per-group plan replacing the method's (<see cref="ModelQuantizer.DefaultPlan"/>), with the
+    /// variant's name appended to the recorded method (<c>method+name</c>) so that its card never passes for the method's.
+    /// </summary>
+    internal (string Name, Func<IReadOnlyList<ModelQuantizer.MatMulGroup>, int, ModelQuantizer.GroupPlan> Plan)? Variant { get; init; }
+
+    /// <summary>Measurements only: calibration phrases replacing <see cref="QuantizationPhrases.Calibration"/>.</summary>
+    internal IReadOnlyList<string>? CalibrationPhrases { get; init; }
+
     /// <summary>Runtime settings for the sessions that calibrate and evaluate (default: 1 intra-op thread, which also keeps calibration exactly repeatable).</summary>
     public OnnxEmbedderOptions EmbedderOptions { get; init; } = new() { IntraOpThreads = 1, QuantizedIntraOpThreads = 1 };
 }

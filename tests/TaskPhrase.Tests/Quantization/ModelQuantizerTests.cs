@@ -27,6 +27,8 @@ public sealed class ModelQuantizerTests(QuantizedModelFixture fixture)
     [Fact]
     public void Quantize_Graph_QuantisesTheWideInputsPerTokenAndTheOthersPerTensor()
     {
+        // Each wide group also keeps its outlier input channels in fp32: one Gather, one fp32 MatMul and one Add more
+        // than the source graph per layer (the 36 weight MatMuls become MatMulInteger).
         // all-MiniLM-L6-v2: 6 layers, each with three 384-channel activation groups (Q/K/V input, attention output
         // input, intermediate input: DynamicQuantizeLinear per tensor) and one 1,536-channel group (the down-projection
         // fed by GELU: per-token QuantizeLinear along the rows of a [-1, 1536] reshape); 36 MatMulInteger in all.
@@ -37,6 +39,10 @@ public sealed class ModelQuantizerTests(QuantizedModelFixture fixture)
         Assert.Equal(6, ops.GetValueOrDefault("QuantizeLinear"));
         Assert.Equal(0, ops.GetValueOrDefault("DequantizeLinear"));
         Assert.Empty(graph.NonStandard);
+        var source = GraphSummary.Read(Path.Combine(BuiltInModels.Locate(BuiltInModels.MiniLmL6V2), "model.onnx")).OpCounts;
+        Assert.Equal(source.GetValueOrDefault("MatMul") - 36 + 6, ops.GetValueOrDefault("MatMul"));
+        Assert.Equal(source.GetValueOrDefault("Gather") + 6, ops.GetValueOrDefault("Gather"));
+        Assert.Equal(source.GetValueOrDefault("Add") + 6, ops.GetValueOrDefault("Add"));
         Assert.All(graph.QuantizeLinear, q =>
         {
             Assert.Equal(0, q.Axis);

@@ -119,16 +119,16 @@ internal sealed class PhraseScreen
         }
         double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
         bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
-        Span<int> dots = stackalloc int[4];
+        if (vnni && !perRow)
+        {
+            FoldVnni(shifted, b, fNorm, vNorm, phraseTask, lower, upper);
+            return true;
+        }
         for (int r = 0; r < Rows; r++)
         {
-            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop. Four rows at a time where VNNI is there
-            // (four independent accumulator chains sharing the query loads), else one.
-            int k = r & 3;
-            if (vnni && k == 0 && r + 4 <= Rows) DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims), dots);
-            int dot = !vnni ? DotInt8(_q.AsSpan(r * dims, dims), p)
-                : r + 4 - k <= Rows ? dots[k] - 128 * _qSum[r]
-                : DotShiftedVnni(shifted, _q.AsSpan(r * dims, dims)) - 128 * _qSum[r];
+            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop.
+            var row = _q.AsSpan(r * dims, dims);
+            int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             if (perRow)
@@ -167,14 +167,68 @@ internal sealed class PhraseScreen
     }
 
     /// <summary>
-    /// <see cref="DotShiftedVnni"/> for the four consecutive rows of <paramref name="rows"/> (each as long as
-    /// <paramref name="u"/>), written to <paramref name="dots"/>[0..3]: the same integers, with the query loaded once per
-    /// chunk and four independent accumulators (one VPDPBUSD chain per row).
+    /// The task-maxima fold of <see cref="Scan"/> on the VNNI path, four rows at a time: the same integers and the same
+    /// double arithmetic in the same order (so the same bounds, bit for bit), the four rows' bounds computed in one
+    /// vector, and each task's running maxima kept in registers while its rows follow one another (rows of a task are
+    /// contiguous in a resolver's matrix; any order stays correct, as every run is folded into the task's maxima).
     /// </summary>
-    internal static void DotShiftedVnni4(ReadOnlySpan<byte> u, ReadOnlySpan<sbyte> rows, Span<int> dots)
+    private void FoldVnni(ReadOnlySpan<byte> shifted, double b, double fNorm, double vNorm, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
+    {
+        int dims = Dimensions, rows = Rows, task = -1, r = 0;
+        double up = double.NegativeInfinity, lo = double.NegativeInfinity;
+        void Add(int t, double hi, double low, Span<double> lowerSpan, Span<double> upperSpan)
+        {
+            if (t != task)
+            {
+                if (task >= 0) Flush(task, up, lo, lowerSpan, upperSpan);
+                task = t;
+                up = hi;
+                lo = low;
+                return;
+            }
+            if (hi > up) up = hi;
+            if (low > lo) lo = low;
+        }
+        if (Avx2.IsSupported)
+        {
+            var shift = Vector128.Create(128);
+            var slack = Vector256.Create(1e-6);
+            for (; r + 4 <= rows; r += 4)
+            {
+                var sums = DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - shift * Vector128.LoadUnsafe(ref _qSum[r]);
+                var dot = Avx.ConvertToVector256Double(sums);
+                var approx = Vector256.LoadUnsafe(ref _scale[r]) * b * dot;
+                var bound = Vector256.LoadUnsafe(ref _quantNorm[r]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[r]) * vNorm + slack;
+                var hi = approx + bound;
+                var low = approx - bound;
+                for (int k = 0; k < 4; k++) Add(phraseTask[r + k], hi.GetElement(k), low.GetElement(k), lower, upper);
+            }
+        }
+        for (; r < rows; r++)
+        {
+            int dot = DotShiftedVnni(shifted, _q.AsSpan(r * dims, dims)) - 128 * _qSum[r];
+            double approx = _scale[r] * b * dot;
+            double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
+            Add(phraseTask[r], approx + bound, approx - bound, lower, upper);
+        }
+        if (task >= 0) Flush(task, up, lo, lower, upper);
+    }
+
+    private static void Flush(int task, double up, double lo, Span<double> lower, Span<double> upper)
+    {
+        if (up > upper[task]) upper[task] = up;
+        if (lo > lower[task]) lower[task] = lo;
+    }
+
+    /// <summary>
+    /// <see cref="DotShiftedVnni"/> for four consecutive rows of <paramref name="rows"/> (each as long as
+    /// <paramref name="u"/>) as one vector: the query loaded once per chunk, four independent accumulators, and the four
+    /// horizontal sums done together (pairwise adds within each 128-bit half, then the halves).
+    /// </summary>
+    internal static Vector128<int> DotShiftedVnni4(ReadOnlySpan<byte> u, ReadOnlySpan<sbyte> rows)
     {
         int n = u.Length;
-        if (rows.Length < 4 * n || dots.Length < 4) throw new ArgumentException("Need four rows as long as the query, and four results.");
+        if (rows.Length < 4 * n) throw new ArgumentException("Need four rows as long as the query.", nameof(rows));
         ref byte ru = ref MemoryMarshal.GetReference(u);
         ref sbyte r0 = ref MemoryMarshal.GetReference(rows);
         ref sbyte r1 = ref Unsafe.Add(ref r0, n);
@@ -189,10 +243,8 @@ internal sealed class PhraseScreen
             a2 = AvxVnni.MultiplyWideningAndAdd(a2, x, Vector256.LoadUnsafe(ref r2, (nuint)i));
             a3 = AvxVnni.MultiplyWideningAndAdd(a3, x, Vector256.LoadUnsafe(ref r3, (nuint)i));
         }
-        dots[0] = Vector256.Sum(a0);
-        dots[1] = Vector256.Sum(a1);
-        dots[2] = Vector256.Sum(a2);
-        dots[3] = Vector256.Sum(a3);
+        var h = Avx2.HorizontalAdd(Avx2.HorizontalAdd(a0, a1), Avx2.HorizontalAdd(a2, a3));
+        return h.GetLower() + h.GetUpper();
     }
 
     /// <summary>Σ q[i]·p[i], exact in 32-bit integers (|q|, |p| ≤ 127: no overflow below 133,000 dimensions).</summary>

@@ -99,8 +99,7 @@ public class PhraseScreenTests
         {
             var rows = Enumerable.Range(0, 4 * n).Select(i => (sbyte)(i % 9 == 0 ? -127 : i % 17 == 0 ? 127 : random.Next(-127, 128))).ToArray();
             var u = Enumerable.Range(0, n).Select(i => (byte)(i % 5 == 0 ? 255 : i % 13 == 0 ? 1 : random.Next(1, 256))).ToArray();
-            var dots = new int[4];
-            PhraseScreen.DotShiftedVnni4(u, rows, dots);
+            var dots = PhraseScreen.DotShiftedVnni4(u, rows);
             for (int k = 0; k < 4; k++)
             {
                 var row = rows.AsSpan(k * n, n);

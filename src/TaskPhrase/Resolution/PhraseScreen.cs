@@ -201,6 +201,18 @@ internal sealed class PhraseScreen
                 var bound = Vector256.LoadUnsafe(ref _quantNorm[r]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[r]) * vNorm + slack;
                 var hi = approx + bound;
                 var low = approx - bound;
+                int first = phraseTask[r];
+                if (first == task && phraseTask[r + 3] == task && phraseTask[r + 1] == task && phraseTask[r + 2] == task)
+                {
+                    // All four rows continue the current task's run (the usual case: a task's rows are contiguous):
+                    // fold them with two vector maxima instead of four scalar steps.
+                    var hi2 = Vector128.Max(hi.GetLower(), hi.GetUpper());
+                    var low2 = Vector128.Max(low.GetLower(), low.GetUpper());
+                    double hiMax = Math.Max(hi2.GetElement(0), hi2.GetElement(1)), lowMax = Math.Max(low2.GetElement(0), low2.GetElement(1));
+                    if (hiMax > up) up = hiMax;
+                    if (lowMax > lo) lo = lowMax;
+                    continue;
+                }
                 for (int k = 0; k < 4; k++) Add(phraseTask[r + k], hi.GetElement(k), low.GetElement(k), lower, upper);
             }
         }

@@ -13,7 +13,8 @@ namespace TaskPhrase.Benchmarks;
 /// are training queries, ten consecutive queries of one intent per task (1,000 phrases: the first ten of 100 intents;
 /// more: each intent's queries in groups of ten, up to 15,000), and each round's query is the next of 300 validation
 /// queries. The embeddings are computed once and kept in the scratch folder. <c>--diagnose</c> first times the 8-bit
-/// phrase screen's bounds alone and counts the tasks it leaves to score exactly (for 5 candidates).
+/// phrase screen's bounds alone and counts the tasks it leaves to score exactly (for 5 candidates), and adds a best-phrase
+/// ranking with the screen turned off.
 /// </summary>
 internal static class SearchHarness
 {
@@ -84,6 +85,14 @@ internal static class SearchHarness
                     new ResolverOptions { Scoring = strategy, UnintelligibleGuard = false });
                 names.Add($"Rank, {strategy}");
                 ops.Add(() => resolver.Rank("find the nearest task"));
+                if (strategy == ScoringStrategy.BestPhrase && a.Flag("diagnose"))
+                {
+                    // The same ranking with the screen turned off: every phrase scored exactly.
+                    var unscreened = TaskResolver.FromEmbeddings(registry, generator, generator.Model, matrix, [],
+                        new ResolverOptions { Scoring = strategy, UnintelligibleGuard = false, PhraseScreen = false });
+                    names.Add($"Rank, {strategy} (no screen)");
+                    ops.Add(() => unscreened.Rank("find the nearest task"));
+                }
             }
             var samples = names.Select(n => new Samples(n, rounds)).ToArray();
             var allocated = new long[ops.Count];

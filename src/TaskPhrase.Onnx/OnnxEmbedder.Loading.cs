@@ -75,11 +75,12 @@ public sealed partial class OnnxEmbedder
     {
         string modelPath = Path.Combine(directory, "model.onnx");
         string vocabPath = Path.Combine(directory, "vocab.txt");
-        // Hash the model (or the mapped form's files, whose record carries the source's hash) and read the vocabulary
-        // beside session creation (the longest step of a cold start).
+        // Beside session creation (the longest step of a cold start): read the vocabulary, and hash model.onnx, or check
+        // the mapped form's files against their record (which carries the source's hash; empty result = they match).
         var hashing = opened is null
             ? Task.Run(() => { using var s = File.OpenRead(modelPath); return Convert.ToHexStringLower(SHA256.HashData(s)); })
-            : Task.Run(() => OptimizedModel.Verify(opened));
+            : null;
+        var verifying = opened is null ? null : Task.Run(() => OptimizedModel.Verify(opened));
         var tokenizing = Task.Run(() => new WordPieceTokenizer(vocabPath, card.Lowercase));
         InferenceSession session;
         using (var sessionOptions = SessionOptionsFor(card, options))
@@ -91,7 +92,7 @@ public sealed partial class OnnxEmbedder
             catch (OnnxRuntimeException e) when (opened is not null)
             {
                 tokenizing.GetAwaiter().GetResult();
-                hashing.GetAwaiter().GetResult();
+                verifying?.GetAwaiter().GetResult();
                 return CreateCore(directory, card, options, null, $"ONNX Runtime refused {OptimizedModel.FileName} ({e.Message})");
             }
             catch (Exception e)
@@ -107,13 +108,15 @@ public sealed partial class OnnxEmbedder
         {
             var tokenizer = tokenizing.GetAwaiter().GetResult();
             var (outputName, needsTypes) = CheckContract(session, modelPath, card);
-            string sha = hashing.GetAwaiter().GetResult();
-            if (opened is not null)
+            string sha;
+            if (opened is null) sha = hashing!.GetAwaiter().GetResult();
+            else
             {
-                if (sha.Length > 0)
+                string mismatch = verifying!.GetAwaiter().GetResult();
+                if (mismatch.Length > 0)
                 {
                     session.Dispose();
-                    return CreateCore(directory, card, options, null, sha);
+                    return CreateCore(directory, card, options, null, mismatch);
                 }
                 sha = opened.Record.SourceSha256;
             }

@@ -119,9 +119,9 @@ internal sealed class PhraseScreen
         }
         double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
         bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
-        if (vnni && !perRow)
+        if (!perRow && (vnni || (Avx2.IsSupported && dims % 16 == 0)))
         {
-            FoldVnni(shifted, b, fNorm, vNorm, phraseTask, lower, upper);
+            FoldFourRows(shifted, p, vnni, b, fNorm, vNorm, phraseTask, lower, upper);
             return true;
         }
         for (int r = 0; r < Rows; r++)
@@ -167,12 +167,16 @@ internal sealed class PhraseScreen
     }
 
     /// <summary>
-    /// The task-maxima fold of <see cref="Scan"/> on the VNNI path, four rows at a time: the same integers and the same
-    /// double arithmetic in the same order (so the same bounds, bit for bit), the four rows' bounds computed in one
-    /// vector, and each task's running maxima kept in registers while its rows follow one another (rows of a task are
-    /// contiguous in a resolver's matrix; any order stays correct, as every run is folded into the task's maxima).
+    /// The task-maxima fold of <see cref="Scan"/>, four rows at a time: the same integers and the same double
+    /// arithmetic in the same order (so the same bounds, bit for bit), the four rows' bounds computed in one vector, and
+    /// each task's running maxima kept in registers while its rows follow one another (rows of a task are contiguous in a
+    /// resolver's matrix; any order stays correct, as every run is folded into the task's maxima). The four dot products
+    /// come from <see cref="DotShiftedVnni4"/> where the CPU has AVX-VNNI (<paramref name="vnni"/>), else from
+    /// <see cref="DotInt8x4"/> (AVX-512BW or AVX2 16-bit multiply-adds: CPUs with AVX-512 VNNI but not the VEX form, such
+    /// as AMD Zen 4, take this path).
     /// </summary>
-    private void FoldVnni(ReadOnlySpan<byte> shifted, double b, double fNorm, double vNorm, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
+    private void FoldFourRows(ReadOnlySpan<byte> shifted, ReadOnlySpan<short> p, bool vnni, double b, double fNorm, double vNorm,
+        ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
     {
         int dims = Dimensions, rows = Rows, task = -1, r = 0;
         double up = double.NegativeInfinity, lo = double.NegativeInfinity;
@@ -195,7 +199,9 @@ internal sealed class PhraseScreen
             var slack = Vector256.Create(1e-6);
             for (; r + 4 <= rows; r += 4)
             {
-                var sums = DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - shift * Vector128.LoadUnsafe(ref _qSum[r]);
+                var sums = vnni
+                    ? DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - shift * Vector128.LoadUnsafe(ref _qSum[r])
+                    : DotInt8x4(_q.AsSpan(r * dims, 4 * dims), p);
                 var dot = Avx.ConvertToVector256Double(sums);
                 var approx = Vector256.LoadUnsafe(ref _scale[r]) * b * dot;
                 var bound = Vector256.LoadUnsafe(ref _quantNorm[r]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[r]) * vNorm + slack;
@@ -218,7 +224,8 @@ internal sealed class PhraseScreen
         }
         for (; r < rows; r++)
         {
-            int dot = DotShiftedVnni(shifted, _q.AsSpan(r * dims, dims)) - 128 * _qSum[r];
+            var row = _q.AsSpan(r * dims, dims);
+            int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             Add(phraseTask[r], approx + bound, approx - bound, lower, upper);
@@ -254,6 +261,50 @@ internal sealed class PhraseScreen
             a1 = AvxVnni.MultiplyWideningAndAdd(a1, x, Vector256.LoadUnsafe(ref r1, (nuint)i));
             a2 = AvxVnni.MultiplyWideningAndAdd(a2, x, Vector256.LoadUnsafe(ref r2, (nuint)i));
             a3 = AvxVnni.MultiplyWideningAndAdd(a3, x, Vector256.LoadUnsafe(ref r3, (nuint)i));
+        }
+        var h = Avx2.HorizontalAdd(Avx2.HorizontalAdd(a0, a1), Avx2.HorizontalAdd(a2, a3));
+        return h.GetLower() + h.GetUpper();
+    }
+
+    /// <summary>
+    /// <see cref="DotInt8"/> for four consecutive rows of <paramref name="rows"/> (each as long as <paramref name="p"/>, a
+    /// multiple of 16) as one vector, exact in 32-bit integers: each chunk of the query loaded once for the four rows,
+    /// the rows widened to 16 bits and multiplied-and-added in pairs (VPMADDWD; 32 lanes with AVX-512BW, else 16 with
+    /// AVX2). Needs <see cref="Avx2"/>.
+    /// </summary>
+    internal static Vector128<int> DotInt8x4(ReadOnlySpan<sbyte> rows, ReadOnlySpan<short> p)
+    {
+        int n = p.Length, i = 0;
+        if (rows.Length < 4 * n || n % 16 != 0) throw new ArgumentException("Need four rows as long as the query, a multiple of 16.", nameof(rows));
+        ref short rp = ref MemoryMarshal.GetReference(p);
+        ref sbyte r0 = ref MemoryMarshal.GetReference(rows);
+        ref sbyte r1 = ref Unsafe.Add(ref r0, n);
+        ref sbyte r2 = ref Unsafe.Add(ref r0, 2 * n);
+        ref sbyte r3 = ref Unsafe.Add(ref r0, 3 * n);
+        Vector256<int> a0 = default, a1 = default, a2 = default, a3 = default;
+        if (Avx512BW.IsSupported)
+        {
+            Vector512<int> w0 = default, w1 = default, w2 = default, w3 = default;
+            for (; i + 32 <= n; i += 32)
+            {
+                var x = Vector512.LoadUnsafe(ref rp, (nuint)i);
+                w0 += Avx512BW.MultiplyAddAdjacent(Avx512BW.ConvertToVector512Int16(Vector256.LoadUnsafe(ref r0, (nuint)i)), x);
+                w1 += Avx512BW.MultiplyAddAdjacent(Avx512BW.ConvertToVector512Int16(Vector256.LoadUnsafe(ref r1, (nuint)i)), x);
+                w2 += Avx512BW.MultiplyAddAdjacent(Avx512BW.ConvertToVector512Int16(Vector256.LoadUnsafe(ref r2, (nuint)i)), x);
+                w3 += Avx512BW.MultiplyAddAdjacent(Avx512BW.ConvertToVector512Int16(Vector256.LoadUnsafe(ref r3, (nuint)i)), x);
+            }
+            a0 = w0.GetLower() + w0.GetUpper();
+            a1 = w1.GetLower() + w1.GetUpper();
+            a2 = w2.GetLower() + w2.GetUpper();
+            a3 = w3.GetLower() + w3.GetUpper();
+        }
+        for (; i + 16 <= n; i += 16)
+        {
+            var x = Vector256.LoadUnsafe(ref rp, (nuint)i);
+            a0 += Avx2.MultiplyAddAdjacent(Avx2.ConvertToVector256Int16(Vector128.LoadUnsafe(ref r0, (nuint)i)), x);
+            a1 += Avx2.MultiplyAddAdjacent(Avx2.ConvertToVector256Int16(Vector128.LoadUnsafe(ref r1, (nuint)i)), x);
+            a2 += Avx2.MultiplyAddAdjacent(Avx2.ConvertToVector256Int16(Vector128.LoadUnsafe(ref r2, (nuint)i)), x);
+            a3 += Avx2.MultiplyAddAdjacent(Avx2.ConvertToVector256Int16(Vector128.LoadUnsafe(ref r3, (nuint)i)), x);
         }
         var h = Avx2.HorizontalAdd(Avx2.HorizontalAdd(a0, a1), Avx2.HorizontalAdd(a2, a3));
         return h.GetLower() + h.GetUpper();

@@ -27,14 +27,20 @@ public class PhraseScreenTests
         var oneRowPerTask = Enumerable.Range(0, rows).ToArray();
         var lower = new double[rows];
         var upper = new double[rows];
+        var approx = new double[rows];
+        var bound = new double[rows];
         double widest = 0;
         for (int trial = 0; trial < 200; trial++)
         {
             var v = Gaussian(random);
             if (trial % 4 == 0) phrases.AsSpan(random.Next(rows) * Dims, Dims).CopyTo(v);
             Assert.True(screen.Bounds(v, oneRowPerTask, lower, upper));
+            // The four-row fold and the one-row scan (RowBounds) do the same arithmetic: the same doubles, bit for bit.
+            Assert.True(screen.RowBounds(v, approx, bound));
             for (int r = 0; r < rows; r++)
             {
+                Assert.Equal(approx[r] + bound[r], upper[r]);
+                Assert.Equal(approx[r] - bound[r], lower[r]);
                 float exact = TensorPrimitives.Dot(v, phrases.AsSpan(r * Dims, Dims));
                 Assert.InRange(exact, lower[r], upper[r]);
                 widest = Math.Max(widest, upper[r] - lower[r]);
@@ -107,6 +113,28 @@ public class PhraseScreenTests
                 for (int i = 0; i < n; i++) plain += u[i] * row[i];
                 Assert.Equal(plain, dots[k]);
                 Assert.Equal(PhraseScreen.DotShiftedVnni(u, row), dots[k]);
+            }
+        }
+    }
+
+    [Fact]
+    public void DotInt8x4_FourRows_EqualThePlainLoop()
+    {
+        // The four-row 16-bit kernel (AVX-512BW 32 lanes, then AVX2 16 lanes for the rest) must give each row's exact
+        // integer, extremes included; 16 and 48 dimensions take only or partly the 16-lane loop.
+        if (!System.Runtime.Intrinsics.X86.Avx2.IsSupported) return; // the fold uses DotInt8 per row there (checked above)
+        var random = new Random(5);
+        foreach (int n in new[] { 16, 32, 48, 384, 1024 })
+        {
+            var rows = Enumerable.Range(0, 4 * n).Select(i => (sbyte)(i % 9 == 0 ? -127 : i % 17 == 0 ? 127 : random.Next(-127, 128))).ToArray();
+            var p = Enumerable.Range(0, n).Select(i => (short)(i % 5 == 0 ? 127 : i % 13 == 0 ? -127 : random.Next(-127, 128))).ToArray();
+            var dots = PhraseScreen.DotInt8x4(rows, p);
+            for (int k = 0; k < 4; k++)
+            {
+                var row = rows.AsSpan(k * n, n);
+                int plain = 0;
+                for (int i = 0; i < n; i++) plain += row[i] * p[i];
+                Assert.Equal(plain, dots[k]);
             }
         }
     }

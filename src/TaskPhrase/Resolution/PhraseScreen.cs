@@ -124,11 +124,18 @@ internal sealed class PhraseScreen
             FoldFourRows(shifted, p, vnni, b, fNorm, vNorm, phraseTask, lower, upper);
             return true;
         }
+        bool four = vnni || (Avx2.IsSupported && dims % 16 == 0);
+        Vector128<int> dots = default;
         for (int r = 0; r < Rows; r++)
         {
-            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop.
+            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop (four rows at a time where the CPU allows).
             var row = _q.AsSpan(r * dims, dims);
-            int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
+            if (four && r % 4 == 0 && r + 4 <= Rows)
+                dots = vnni
+                    ? DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - Vector128.Create(128) * Vector128.LoadUnsafe(ref _qSum[r])
+                    : DotInt8x4(_q.AsSpan(r * dims, 4 * dims), p);
+            int dot = four && r < Rows - Rows % 4 ? dots.GetElement(r % 4)
+                : vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             if (perRow)

@@ -119,23 +119,18 @@ internal sealed class PhraseScreen
         }
         double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
         bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
-        if (!perRow && (vnni || (Avx2.IsSupported && dims % 16 == 0)))
+        bool four = vnni || (Avx2.IsSupported && dims % 16 == 0);
+        if (!perRow && four)
         {
             FoldFourRows(shifted, p, vnni, b, fNorm, vNorm, phraseTask, lower, upper);
             return true;
         }
-        bool four = vnni || (Avx2.IsSupported && dims % 16 == 0);
+        int blocked = four ? Rows - Rows % 4 : 0;
         Vector128<int> dots = default;
         for (int r = 0; r < Rows; r++)
         {
-            // Σ (p+128)·q − 128·Σq = Σ p·q: the same integer as the plain loop (four rows at a time where the CPU allows).
-            var row = _q.AsSpan(r * dims, dims);
-            if (four && r % 4 == 0 && r + 4 <= Rows)
-                dots = vnni
-                    ? DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - Vector128.Create(128) * Vector128.LoadUnsafe(ref _qSum[r])
-                    : DotInt8x4(_q.AsSpan(r * dims, 4 * dims), p);
-            int dot = four && r < Rows - Rows % 4 ? dots.GetElement(r % 4)
-                : vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
+            if (r < blocked && r % 4 == 0) dots = RowDots4(r, shifted, p, vnni);
+            int dot = r < blocked ? dots.GetElement(r % 4) : RowDot(r, shifted, p, vnni);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             if (perRow)
@@ -202,14 +197,10 @@ internal sealed class PhraseScreen
         }
         if (Avx2.IsSupported)
         {
-            var shift = Vector128.Create(128);
             var slack = Vector256.Create(1e-6);
             for (; r + 4 <= rows; r += 4)
             {
-                var sums = vnni
-                    ? DotShiftedVnni4(shifted, _q.AsSpan(r * dims, 4 * dims)) - shift * Vector128.LoadUnsafe(ref _qSum[r])
-                    : DotInt8x4(_q.AsSpan(r * dims, 4 * dims), p);
-                var dot = Avx.ConvertToVector256Double(sums);
+                var dot = Avx.ConvertToVector256Double(RowDots4(r, shifted, p, vnni));
                 var approx = Vector256.LoadUnsafe(ref _scale[r]) * b * dot;
                 var bound = Vector256.LoadUnsafe(ref _quantNorm[r]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[r]) * vNorm + slack;
                 var hi = approx + bound;
@@ -231,13 +222,29 @@ internal sealed class PhraseScreen
         }
         for (; r < rows; r++)
         {
-            var row = _q.AsSpan(r * dims, dims);
-            int dot = vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
+            int dot = RowDot(r, shifted, p, vnni);
             double approx = _scale[r] * b * dot;
             double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
             Add(phraseTask[r], approx + bound, approx - bound, lower, upper);
         }
         if (task >= 0) Flush(task, up, lo, lower, upper);
+    }
+
+    /// <summary>
+    /// Σ p·q of row <paramref name="r"/>, exact: on the VNNI path from the shifted query, Σ (p+128)·q − 128·Σq = Σ p·q,
+    /// else from the 16-bit query (<see cref="DotInt8"/>).
+    /// </summary>
+    private int RowDot(int r, ReadOnlySpan<byte> shifted, ReadOnlySpan<short> p, bool vnni)
+    {
+        var row = _q.AsSpan(r * Dimensions, Dimensions);
+        return vnni ? DotShiftedVnni(shifted, row) - 128 * _qSum[r] : DotInt8(row, p);
+    }
+
+    /// <summary><see cref="RowDot"/> for rows <paramref name="r"/> to r + 3 in one pass (<see cref="DotShiftedVnni4"/> or <see cref="DotInt8x4"/>).</summary>
+    private Vector128<int> RowDots4(int r, ReadOnlySpan<byte> shifted, ReadOnlySpan<short> p, bool vnni)
+    {
+        var rows = _q.AsSpan(r * Dimensions, 4 * Dimensions);
+        return vnni ? DotShiftedVnni4(shifted, rows) - Vector128.Create(128) * Vector128.LoadUnsafe(ref _qSum[r]) : DotInt8x4(rows, p);
     }
 
     private static void Flush(int task, double up, double lo, Span<double> lower, Span<double> upper)

@@ -14,7 +14,8 @@ namespace TaskPhrase.Benchmarks;
 /// more: each intent's queries in groups of ten, up to 15,000), and each round's query is the next of 300 validation
 /// queries. The embeddings are computed once and kept in the scratch folder. <c>--diagnose</c> first times the 8-bit
 /// phrase screen's bounds alone and counts the tasks it leaves to score exactly (for 5 candidates), and adds a best-phrase
-/// ranking with the screen turned off.
+/// ranking with the screen turned off. <c>--alone</c> also times each operation on its own, many calls in a row (warm
+/// caches: what the operation costs when nothing else ran since its last call), after the interleaved table.
 /// </summary>
 internal static class SearchHarness
 {
@@ -23,7 +24,7 @@ internal static class SearchHarness
 
     public static void Run(IEnumerable<string> args)
     {
-        var a = new HarnessArguments(args, "sizes", "rounds", "real", "clinc150", "diagnose");
+        var a = new HarnessArguments(args, "sizes", "rounds", "real", "clinc150", "diagnose", "alone");
         bool real = a.Flag("real") || a.Flag("clinc150");
         var sizes = real ? a.Ints("sizes", 1_000, 10_000) : a.Ints("sizes", 1_000, 10_000, 100_000);
         var clinc = real ? RealEmbeddings.Load(a.Flag("clinc150") ? a.Text("clinc150", "") : "") : null;
@@ -114,6 +115,23 @@ internal static class SearchHarness
             Console.WriteLine($"{phrases:N0} phrases ({phrases / PhrasesPerTask:N0} tasks), {rounds} rounds{(clinc is null ? ", random unit vectors" : ", CLINC150 embeddings")}");
             Console.WriteLine(Samples.Header + " allocated |");
             for (int k = 0; k < ops.Count; k++) Console.WriteLine($"{samples[k].Row()} {allocated[k] / rounds} B |");
+            if (a.Flag("alone"))
+            {
+                // Each operation on its own: every call right after the previous one, so its data stays in cache.
+                Console.WriteLine();
+                Console.WriteLine($"{phrases:N0} phrases, each operation alone (warm caches), {rounds} calls");
+                Console.WriteLine(Samples.Header);
+                for (int k = 0; k < ops.Count; k++)
+                {
+                    var alone = new Samples(names[k], rounds);
+                    for (int i = 0; i < rounds; i++)
+                    {
+                        clinc?.Query(i).CopyTo(query);
+                        alone.Time(ops[k]);
+                    }
+                    Console.WriteLine(alone.Row());
+                }
+            }
         }
     }
 

@@ -101,49 +101,203 @@ internal sealed class PhraseScreen
         int dims = Dimensions;
         Span<short> p = dims <= 2048 ? stackalloc short[dims] : new short[dims];
         Span<byte> shifted = dims <= 2048 ? stackalloc byte[dims] : new byte[dims];
-        double vv = 0, max = 0;
-        foreach (float x in vector)
-        {
-            if (!float.IsFinite(x)) return false;
-            vv += (double)x * x;
-            max = Math.Max(max, Math.Abs(x));
-        }
-        double b = max / 127, ff = 0;
-        for (int i = 0; i < dims; i++)
-        {
-            double pi = b > 0 ? Math.Clamp(Math.Round(vector[i] / b), -127, 127) : 0;
-            p[i] = (short)pi;
-            shifted[i] = (byte)(pi + 128);
-            double f = vector[i] - b * pi;
-            ff += f * f;
-        }
-        double vNorm = Math.Sqrt(vv), fNorm = Math.Sqrt(ff);
-        bool vnni = AvxVnni.IsSupported && dims % 32 == 0, perRow = rowApprox.Length > 0;
+        if (!QuantizeQuery(vector, p, shifted, out double b, out double vNorm, out double fNorm)) return false;
+        bool vnni = AvxVnni.IsSupported && dims % 32 == 0;
         bool four = vnni || (Avx2.IsSupported && dims % 16 == 0);
-        if (!perRow && four)
+        bool perRow = rowApprox.Length > 0;
+        // In blocks small enough for the stack (and the first-level cache): the block's exact integer dot products,
+        // then its rows' bounds in vectors, then (task maxima) a fold of the block into the running maxima.
+        Span<int> dots = stackalloc int[BlockRows];
+        Span<double> hi = perRow ? default : stackalloc double[BlockRows];
+        Span<double> lo = perRow ? default : stackalloc double[BlockRows];
+        var fold = new TaskFold(lower, upper);
+        for (int start = 0; start < Rows; start += BlockRows)
         {
-            FoldFourRows(shifted, p, vnni, b, fNorm, vNorm, phraseTask, lower, upper);
-            return true;
-        }
-        int blocked = four ? Rows - Rows % 4 : 0;
-        Vector128<int> dots = default;
-        for (int r = 0; r < Rows; r++)
-        {
-            if (r < blocked && r % 4 == 0) dots = RowDots4(r, shifted, p, vnni);
-            int dot = r < blocked ? dots.GetElement(r % 4) : RowDot(r, shifted, p, vnni);
-            double approx = _scale[r] * b * dot;
-            double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
+            int n = Math.Min(BlockRows, Rows - start), r = 0;
+            if (four)
+                for (; r + 4 <= n; r += 4) RowDots4(start + r, shifted, p, vnni).StoreUnsafe(ref dots[r]);
+            for (; r < n; r++) dots[r] = RowDot(start + r, shifted, p, vnni);
             if (perRow)
             {
-                rowApprox[r] = approx;
-                rowBound[r] = bound;
+                RowIntervals(start, dots[..n], b, fNorm, vNorm, rowApprox.Slice(start, n), rowBound.Slice(start, n), default, default);
                 continue;
             }
-            int t = phraseTask[r];
-            if (approx + bound > upper[t]) upper[t] = approx + bound;
-            if (approx - bound > lower[t]) lower[t] = approx - bound;
+            RowIntervals(start, dots[..n], b, fNorm, vNorm, default, default, hi[..n], lo[..n]);
+            fold.Add(phraseTask.Slice(start, n), hi[..n], lo[..n]);
         }
+        fold.Flush();
         return true;
+    }
+
+    /// <summary>
+    /// The query as v = b·p + f: p[i] = round(v[i] / b) clamped to −127..127 with b = max|v| / 127 (and the same
+    /// shifted by 128 for the unsigned kernel), ‖v‖ and ‖f‖ in double. Four components per vector where the CPU has
+    /// AVX. The bounds hold for any integers p with f computed from them, so the rounding need not match a scalar loop
+    /// bit for bit; both of <see cref="Scan"/>'s outputs use this one result. False when the query is not finite.
+    /// </summary>
+    private static bool QuantizeQuery(ReadOnlySpan<float> vector, Span<short> p, Span<byte> shifted, out double b, out double vNorm, out double fNorm)
+    {
+        int dims = vector.Length, i = 0;
+        ref float rv = ref MemoryMarshal.GetReference(vector);
+        double vv = 0, max = 0;
+        if (Avx.IsSupported)
+        {
+            var squares = Vector256<double>.Zero;
+            var largest = Vector256<double>.Zero;
+            for (; i + 4 <= dims; i += 4)
+            {
+                var x = Avx.ConvertToVector256Double(Vector128.LoadUnsafe(ref rv, (nuint)i));
+                squares += x * x;
+                largest = Vector256.Max(largest, Vector256.Abs(x));
+            }
+            vv = Vector256.Sum(squares);
+            for (int k = 0; k < 4; k++) max = Math.Max(max, largest.GetElement(k));
+        }
+        for (; i < dims; i++)
+        {
+            double x = vector[i];
+            vv += x * x;
+            max = Math.Max(max, Math.Abs(x));
+        }
+        b = max / 127;
+        vNorm = Math.Sqrt(vv);
+        fNorm = 0;
+        // Σ v² overflows to ∞ or becomes NaN exactly when a component is not finite (floats squared fit a double).
+        if (!double.IsFinite(vv)) return false;
+        if (b == 0)
+        {
+            p.Clear();
+            shifted.Fill(128);
+            return true;
+        }
+        double ff = 0;
+        i = 0;
+        if (Avx.IsSupported)
+        {
+            var step = Vector256.Create(b);
+            var limit = Vector256.Create(127.0);
+            var residual = Vector256<double>.Zero;
+            for (; i + 4 <= dims; i += 4)
+            {
+                var x = Avx.ConvertToVector256Double(Vector128.LoadUnsafe(ref rv, (nuint)i));
+                var level = Vector256.Min(Vector256.Max(Avx.RoundToNearestInteger(x / step), -limit), limit);
+                var f = x - step * level;
+                residual += f * f;
+                var ints = Avx.ConvertToVector128Int32(level);
+                var narrow = Vector128.Narrow(ints, ints);
+                Unsafe.WriteUnaligned(ref Unsafe.As<short, byte>(ref p[i]), narrow.AsInt64().ToScalar());
+                var bytes = Vector128.Narrow(narrow + Vector128.Create((short)128), narrow);
+                Unsafe.WriteUnaligned(ref shifted[i], bytes.AsInt32().ToScalar());
+            }
+            ff = Vector256.Sum(residual);
+        }
+        for (; i < dims; i++)
+        {
+            double level = Math.Clamp(Math.Round(vector[i] / b), -127, 127);
+            p[i] = (short)level;
+            shifted[i] = (byte)(level + 128);
+            double f = vector[i] - b * level;
+            ff += f * f;
+        }
+        fNorm = Math.Sqrt(ff);
+        return true;
+    }
+
+    /// <summary>Rows per block of <see cref="Scan"/>: 256 rows' integers and bounds take 5 KB of stack.</summary>
+    private const int BlockRows = 256;
+
+    /// <summary>
+    /// The rows' intervals from their integer dot products: approx = a_r·b·dot and bound = a_r·‖q_r‖·‖f‖ + (‖e_r‖ +
+    /// slack)·‖v‖ + 10⁻⁶, written either as approx and bound or as approx + bound and approx − bound. Four rows per
+    /// vector where the CPU has AVX, one at a time otherwise: the same double operations in the same order either way,
+    /// so both forms and both paths give the same doubles, bit for bit.
+    /// </summary>
+    private void RowIntervals(int start, ReadOnlySpan<int> dots, double b, double fNorm, double vNorm,
+        Span<double> approxOut, Span<double> boundOut, Span<double> hiOut, Span<double> loOut)
+    {
+        int n = dots.Length, i = 0;
+        bool split = approxOut.Length > 0;
+        if (Avx.IsSupported)
+        {
+            var slack = Vector256.Create(1e-6);
+            for (; i + 4 <= n; i += 4)
+            {
+                var dot = Avx.ConvertToVector256Double(Vector128.LoadUnsafe(ref MemoryMarshal.GetReference(dots), (nuint)i));
+                var approx = Vector256.LoadUnsafe(ref _scale[start + i]) * b * dot;
+                var bound = Vector256.LoadUnsafe(ref _quantNorm[start + i]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[start + i]) * vNorm + slack;
+                if (split)
+                {
+                    approx.StoreUnsafe(ref approxOut[i]);
+                    bound.StoreUnsafe(ref boundOut[i]);
+                }
+                else
+                {
+                    (approx + bound).StoreUnsafe(ref hiOut[i]);
+                    (approx - bound).StoreUnsafe(ref loOut[i]);
+                }
+            }
+        }
+        for (; i < n; i++)
+        {
+            int r = start + i;
+            double approx = _scale[r] * b * dots[i];
+            double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
+            if (split)
+            {
+                approxOut[i] = approx;
+                boundOut[i] = bound;
+            }
+            else
+            {
+                hiOut[i] = approx + bound;
+                loOut[i] = approx - bound;
+            }
+        }
+    }
+
+    /// <summary>
+    /// Folds rows' bounds into per-task maxima, the running task's maxima kept in locals while its rows follow one
+    /// another (rows of a task are contiguous in a resolver's matrix; any order stays correct, as every run is folded
+    /// into the task's maxima, across blocks too).
+    /// </summary>
+    private ref struct TaskFold(Span<double> lower, Span<double> upper)
+    {
+        private readonly Span<double> _lower = lower, _upper = upper;
+        private int _task = -1;
+        private double _up = double.NegativeInfinity, _lo = double.NegativeInfinity;
+
+        public void Add(scoped ReadOnlySpan<int> tasks, scoped ReadOnlySpan<double> hi, scoped ReadOnlySpan<double> lo)
+        {
+            int task = _task;
+            double up = _up, low = _lo;
+            for (int i = 0; i < tasks.Length; i++)
+            {
+                int t = tasks[i];
+                if (t != task)
+                {
+                    if (task >= 0) Flush(task, up, low);
+                    task = t;
+                    up = hi[i];
+                    low = lo[i];
+                    continue;
+                }
+                // Branch-free maxima (finite values: the query was checked finite).
+                up = Sse2.IsSupported ? Sse2.MaxScalar(Vector128.CreateScalarUnsafe(up), Vector128.CreateScalarUnsafe(hi[i])).ToScalar() : Math.Max(up, hi[i]);
+                low = Sse2.IsSupported ? Sse2.MaxScalar(Vector128.CreateScalarUnsafe(low), Vector128.CreateScalarUnsafe(lo[i])).ToScalar() : Math.Max(low, lo[i]);
+            }
+            (_task, _up, _lo) = (task, up, low);
+        }
+
+        public readonly void Flush()
+        {
+            if (_task >= 0) Flush(_task, _up, _lo);
+        }
+
+        private readonly void Flush(int task, double up, double lo)
+        {
+            if (up > _upper[task]) _upper[task] = up;
+            if (lo > _lower[task]) _lower[task] = lo;
+        }
     }
 
     /// <summary>
@@ -169,68 +323,6 @@ internal sealed class PhraseScreen
     }
 
     /// <summary>
-    /// The task-maxima fold of <see cref="Scan"/>, four rows at a time: the same integers and the same double
-    /// arithmetic in the same order (so the same bounds, bit for bit), the four rows' bounds computed in one vector, and
-    /// each task's running maxima kept in registers while its rows follow one another (rows of a task are contiguous in a
-    /// resolver's matrix; any order stays correct, as every run is folded into the task's maxima). The four dot products
-    /// come from <see cref="DotShiftedVnni4"/> where the CPU has AVX-VNNI (<paramref name="vnni"/>), else from
-    /// <see cref="DotInt8x4"/> (AVX-512BW or AVX2 16-bit multiply-adds: CPUs with AVX-512 VNNI but not the VEX form, such
-    /// as AMD Zen 4, take this path).
-    /// </summary>
-    private void FoldFourRows(ReadOnlySpan<byte> shifted, ReadOnlySpan<short> p, bool vnni, double b, double fNorm, double vNorm,
-        ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
-    {
-        int dims = Dimensions, rows = Rows, task = -1, r = 0;
-        double up = double.NegativeInfinity, lo = double.NegativeInfinity;
-        void Add(int t, double hi, double low, Span<double> lowerSpan, Span<double> upperSpan)
-        {
-            if (t != task)
-            {
-                if (task >= 0) Flush(task, up, lo, lowerSpan, upperSpan);
-                task = t;
-                up = hi;
-                lo = low;
-                return;
-            }
-            if (hi > up) up = hi;
-            if (low > lo) lo = low;
-        }
-        if (Avx2.IsSupported)
-        {
-            var slack = Vector256.Create(1e-6);
-            for (; r + 4 <= rows; r += 4)
-            {
-                var dot = Avx.ConvertToVector256Double(RowDots4(r, shifted, p, vnni));
-                var approx = Vector256.LoadUnsafe(ref _scale[r]) * b * dot;
-                var bound = Vector256.LoadUnsafe(ref _quantNorm[r]) * fNorm + Vector256.LoadUnsafe(ref _vectorTerm[r]) * vNorm + slack;
-                var hi = approx + bound;
-                var low = approx - bound;
-                int first = phraseTask[r];
-                if (first == task && phraseTask[r + 3] == task && phraseTask[r + 1] == task && phraseTask[r + 2] == task)
-                {
-                    // All four rows continue the current task's run (the usual case: a task's rows are contiguous):
-                    // fold them with two vector maxima instead of four scalar steps.
-                    var hi2 = Vector128.Max(hi.GetLower(), hi.GetUpper());
-                    var low2 = Vector128.Max(low.GetLower(), low.GetUpper());
-                    double hiMax = Math.Max(hi2.GetElement(0), hi2.GetElement(1)), lowMax = Math.Max(low2.GetElement(0), low2.GetElement(1));
-                    if (hiMax > up) up = hiMax;
-                    if (lowMax > lo) lo = lowMax;
-                    continue;
-                }
-                for (int k = 0; k < 4; k++) Add(phraseTask[r + k], hi.GetElement(k), low.GetElement(k), lower, upper);
-            }
-        }
-        for (; r < rows; r++)
-        {
-            int dot = RowDot(r, shifted, p, vnni);
-            double approx = _scale[r] * b * dot;
-            double bound = _quantNorm[r] * fNorm + _vectorTerm[r] * vNorm + 1e-6;
-            Add(phraseTask[r], approx + bound, approx - bound, lower, upper);
-        }
-        if (task >= 0) Flush(task, up, lo, lower, upper);
-    }
-
-    /// <summary>
     /// Σ p·q of row <paramref name="r"/>, exact: on the VNNI path from the shifted query, Σ (p+128)·q − 128·Σq = Σ p·q,
     /// else from the 16-bit query (<see cref="DotInt8"/>).
     /// </summary>
@@ -245,12 +337,6 @@ internal sealed class PhraseScreen
     {
         var rows = _q.AsSpan(r * Dimensions, 4 * Dimensions);
         return vnni ? DotShiftedVnni4(shifted, rows) - Vector128.Create(128) * Vector128.LoadUnsafe(ref _qSum[r]) : DotInt8x4(rows, p);
-    }
-
-    private static void Flush(int task, double up, double lo, Span<double> lower, Span<double> upper)
-    {
-        if (up > upper[task]) upper[task] = up;
-        if (lo > lower[task]) lower[task] = lo;
     }
 
     /// <summary>

@@ -1,5 +1,7 @@
 using System.Buffers;
 using System.Numerics.Tensors;
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
 
 namespace TaskPhrase.Resolution;
 
@@ -188,25 +190,21 @@ public sealed partial class TaskResolver
             var approx = work.AsSpan(0, rows);
             var bound = work.AsSpan(rows, rows);
             if (!screen.RowBounds(vector, approx, bound)) return false;
-            Span<double> hi = stackalloc double[Math.Min(state.TopK, MaxStackTopK)];
-            Span<double> lo = stackalloc double[hi.Length];
+            // Per task, the k largest row upper bounds (lane 0) and row lower bounds (lane 1), kept in descending order.
+            Span<Vector128<double>> top = stackalloc Vector128<double>[Math.Min(state.TopK, MaxStackTopK)];
             for (int t = 0; t < state.TaskCount; t++)
             {
                 int start = state.TaskRowStart[t], end = state.TaskRowStart[t + 1];
                 int k = Math.Min(state.TopK, end - start);
                 if (k == 0) { lower[t] = upper[t] = double.NegativeInfinity; continue; }
-                if (k > hi.Length) return false; // an unusually large k: scan everything instead
-                hi[..k].Fill(double.NegativeInfinity);
-                lo[..k].Fill(double.NegativeInfinity);
+                if (k > top.Length) return false; // an unusually large k: scan everything instead
+                top[..k].Fill(Vector128.Create(double.NegativeInfinity));
                 for (int r = start; r < end; r++)
-                {
-                    InsertLargest(hi[..k], approx[r] + bound[r]);
-                    InsertLargest(lo[..k], approx[r] - bound[r]);
-                }
-                double sumHi = 0, sumLo = 0;
-                for (int i = 0; i < k; i++) { sumHi += hi[i]; sumLo += lo[i]; }
-                upper[t] = sumHi / k + 1e-6;
-                lower[t] = sumLo / k - 1e-6;
+                    InsertLargest(top[..k], Vector128.Create(approx[r] + bound[r], approx[r] - bound[r]));
+                var sum = Vector128<double>.Zero;
+                for (int i = 0; i < k; i++) sum += top[i];
+                upper[t] = sum.GetElement(0) / k + 1e-6;
+                lower[t] = sum.GetElement(1) / k - 1e-6;
             }
             return true;
         }
@@ -219,13 +217,19 @@ public sealed partial class TaskResolver
     /// <summary>Largest k through the screen; a larger top-k scans every phrase.</summary>
     private const int MaxStackTopK = 64;
 
-    /// <summary>Keeps the <c>top.Length</c> largest values seen, in descending order.</summary>
-    private static void InsertLargest(Span<double> top, double v)
+    /// <summary>
+    /// Keeps the <c>top.Length</c> largest values seen in each lane, in descending order, without branches on the values
+    /// (a compare-exchange down the list; the screen's bounds are finite): which rows rank is unpredictable, so a branchy
+    /// insertion would mispredict on most rows.
+    /// </summary>
+    private static void InsertLargest(Span<Vector128<double>> top, Vector128<double> v)
     {
-        if (!(v > top[^1])) return;
-        int i = top.Length - 1;
-        while (i > 0 && v > top[i - 1]) { top[i] = top[i - 1]; i--; }
-        top[i] = v;
+        for (int j = 0; j < top.Length; j++)
+        {
+            var kept = top[j];
+            top[j] = Sse2.IsSupported ? Sse2.Max(kept, v) : Vector128.Max(kept, v);
+            v = Sse2.IsSupported ? Sse2.Min(kept, v) : Vector128.Min(kept, v);
+        }
     }
 
     /// <summary>

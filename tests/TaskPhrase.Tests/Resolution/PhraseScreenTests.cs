@@ -50,13 +50,73 @@ public class PhraseScreenTests
         Assert.True(widest < 0.1, $"bound interval up to {widest}");
     }
 
+    [Theory]
+    [InlineData(48, 7)] // tasks of seven rows: runs cross four-row groups and the 256-row blocks
+    [InlineData(50, 9)] // 50 dimensions: no four-row kernel, and the query's last two components past the vector loop
+    [InlineData(384, 10)]
+    public void Bounds_ContiguousAndInterleavedTasks_AreTheMaximaOfTheRowBounds(int dims, int rowsPerTask)
+    {
+        // Each task's bounds must be the maxima of its rows' own bounds (RowBounds), bit for bit, whether its rows are
+        // contiguous (as in a resolver) or spread out; and hold for the exact scores.
+        var random = new Random(dims + rowsPerTask);
+        int rows = 777;
+        var phrases = new float[rows * dims];
+        for (int r = 0; r < rows; r++) Gaussian(random, dims).CopyTo(phrases.AsSpan(r * dims));
+        var screen = PhraseScreen.Build(phrases, dims);
+        var approx = new double[rows];
+        var bound = new double[rows];
+        foreach (bool contiguous in new[] { true, false })
+        {
+            int tasks = (rows + rowsPerTask - 1) / rowsPerTask;
+            var phraseTask = Enumerable.Range(0, rows).Select(r => contiguous ? r / rowsPerTask : r % tasks).ToArray();
+            var lower = new double[tasks];
+            var upper = new double[tasks];
+            for (int trial = 0; trial < 40; trial++)
+            {
+                var v = Gaussian(random, dims);
+                Assert.True(screen.Bounds(v, phraseTask, lower, upper));
+                Assert.True(screen.RowBounds(v, approx, bound));
+                var expectedUpper = Enumerable.Repeat(double.NegativeInfinity, tasks).ToArray();
+                var expectedLower = Enumerable.Repeat(double.NegativeInfinity, tasks).ToArray();
+                var best = Enumerable.Repeat(float.NegativeInfinity, tasks).ToArray();
+                for (int r = 0; r < rows; r++)
+                {
+                    int t = phraseTask[r];
+                    expectedUpper[t] = Math.Max(expectedUpper[t], approx[r] + bound[r]);
+                    expectedLower[t] = Math.Max(expectedLower[t], approx[r] - bound[r]);
+                    best[t] = Math.Max(best[t], TensorPrimitives.Dot(v, phrases.AsSpan(r * dims, dims)));
+                }
+                Assert.Equal(expectedUpper, upper);
+                Assert.Equal(expectedLower, lower);
+                for (int t = 0; t < tasks; t++) Assert.InRange(best[t], lower[t], upper[t]);
+            }
+        }
+    }
+
+    [Fact]
+    public void Bounds_ZeroQuery_HoldsAtZero()
+    {
+        // A zero query has no quantisation step: every exact score is 0 and must still lie within the bounds.
+        var random = new Random(6);
+        var phrases = Enumerable.Range(0, 4).SelectMany(_ => Gaussian(random)).ToArray();
+        var screen = PhraseScreen.Build(phrases, Dims);
+        var approx = new double[4];
+        var bound = new double[4];
+        Assert.True(screen.RowBounds(new float[Dims], approx, bound));
+        for (int r = 0; r < 4; r++) Assert.InRange(0.0, approx[r] - bound[r], approx[r] + bound[r]);
+    }
+
     [Fact]
     public void Bounds_NonFiniteQuery_Declines()
     {
         var screen = PhraseScreen.Build(Gaussian(new Random(1)), Dims);
-        var v = new float[Dims];
-        v[3] = float.NaN;
-        Assert.False(screen.Bounds(v, [0], new double[1], new double[1]));
+        foreach (float bad in new[] { float.NaN, float.PositiveInfinity, float.NegativeInfinity })
+        {
+            var v = new float[Dims];
+            v[3] = bad;
+            Assert.False(screen.Bounds(v, [0], new double[1], new double[1]));
+            Assert.False(screen.RowBounds(v, new double[1], new double[1]));
+        }
     }
 
     [Fact]
@@ -202,9 +262,12 @@ public class PhraseScreenTests
     private static string Object(int t) => $"ob{(char)('a' + t / 26)}{(char)('a' + t % 26)}ject";
 
     /// <summary>A random unit vector (normalised Gaussian draws, common practice).</summary>
-    private static float[] Gaussian(Random random)
+    private static float[] Gaussian(Random random) => Gaussian(random, Dims);
+
+    /// <summary>A uniformly random unit vector (normalised Gaussian draws, Box–Muller; common practice).</summary>
+    private static float[] Gaussian(Random random, int dims)
     {
-        var v = Enumerable.Range(0, Dims).Select(_ => (float)(Math.Sqrt(-2.0 * Math.Log(1.0 - random.NextDouble())) * Math.Cos(2 * Math.PI * random.NextDouble()))).ToArray();
+        var v = Enumerable.Range(0, dims).Select(_ => (float)(Math.Sqrt(-2.0 * Math.Log(1.0 - random.NextDouble())) * Math.Cos(2 * Math.PI * random.NextDouble()))).ToArray();
         TensorPrimitives.Divide(v, TensorPrimitives.Norm(v), v);
         return v;
     }

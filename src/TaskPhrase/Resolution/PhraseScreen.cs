@@ -82,10 +82,18 @@ internal sealed class PhraseScreen
     /// <paramref name="upper"/>[t]. False (bounds unusable) when the query is not finite.
     /// </summary>
     public bool Bounds(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper)
+        => Bounds(vector, phraseTask, lower, upper, default);
+
+    /// <summary>
+    /// <see cref="Bounds(ReadOnlySpan{float}, ReadOnlySpan{int}, Span{double}, Span{double})"/>, and each row's upper
+    /// bound into <paramref name="rowUpper"/> (as long as the screen has rows; the exact score of row r is at most
+    /// rowUpper[r]), so a task's exact best can skip rows that cannot reach it.
+    /// </summary>
+    public bool Bounds(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper, Span<double> rowUpper)
     {
         lower.Fill(double.NegativeInfinity);
         upper.Fill(double.NegativeInfinity);
-        return Scan(vector, phraseTask, lower, upper, default, default);
+        return Scan(vector, phraseTask, lower, upper, default, default, rowUpper);
     }
 
     /// <summary>
@@ -93,10 +101,11 @@ internal sealed class PhraseScreen
     /// <paramref name="approx"/>[r] ± <paramref name="bound"/>[r]. False (bounds unusable) when the query is not finite.
     /// </summary>
     public bool RowBounds(ReadOnlySpan<float> vector, Span<double> approx, Span<double> bound)
-        => Scan(vector, default, default, default, approx, bound);
+        => Scan(vector, default, default, default, approx, bound, default);
 
     /// <summary>Quantises the query, then per row either folds the bounds into the task maxima or writes them out.</summary>
-    private bool Scan(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper, Span<double> rowApprox, Span<double> rowBound)
+    private bool Scan(ReadOnlySpan<float> vector, ReadOnlySpan<int> phraseTask, Span<double> lower, Span<double> upper, Span<double> rowApprox, Span<double> rowBound,
+        Span<double> rowUpper)
     {
         int dims = Dimensions;
         Span<short> p = dims <= 2048 ? stackalloc short[dims] : new short[dims];
@@ -124,6 +133,7 @@ internal sealed class PhraseScreen
             }
             RowIntervals(start, dots[..n], b, fNorm, vNorm, default, default, hi[..n], lo[..n]);
             fold.Add(phraseTask.Slice(start, n), hi[..n], lo[..n]);
+            if (rowUpper.Length > 0) hi[..n].CopyTo(rowUpper.Slice(start, n));
         }
         fold.Flush();
         return true;

@@ -134,6 +134,7 @@ public sealed partial class TaskResolver
         bool blend = state.Scoring == ScoringStrategy.Blend;
         double w = state.BlendCentroidWeight;
         double[] lowerArray = ArrayPool<double>.Shared.Rent(taskCount), upperArray = ArrayPool<double>.Shared.Rent(taskCount);
+        double[]? rowUpperArray = null;
         try
         {
             var lower = lowerArray.AsSpan(0, taskCount);
@@ -142,7 +143,11 @@ public sealed partial class TaskResolver
             {
                 if (!TopKBounds(state, screen, vector, lower, upper)) return false;
             }
-            else if (!screen.Bounds(vector, state.PhraseTask, lower, upper)) return false;
+            else
+            {
+                rowUpperArray = ArrayPool<double>.Shared.Rent(screen.Rows);
+                if (!screen.Bounds(vector, state.PhraseTask, lower, upper, rowUpperArray.AsSpan(0, screen.Rows))) return false;
+            }
             if (blend)
             {
                 // Blend = w·c + (1 − w)·best with c the exact centroid cosine: the best-phrase bounds carry over, widened by
@@ -160,7 +165,7 @@ public sealed partial class TaskResolver
             {
                 if (upper[t] >= threshold)
                 {
-                    scores[t] = ExactScore(state, vector, t, out rows[t]);
+                    scores[t] = rowUpperArray is null ? ExactScore(state, vector, t, out rows[t]) : ExactScore(state, vector, t, rowUpperArray, out rows[t]);
                     continue;
                 }
                 float bound = (float)upper[t];
@@ -173,6 +178,7 @@ public sealed partial class TaskResolver
         {
             ArrayPool<double>.Shared.Return(lowerArray);
             ArrayPool<double>.Shared.Return(upperArray);
+            if (rowUpperArray is not null) ArrayPool<double>.Shared.Return(rowUpperArray);
         }
     }
 
@@ -198,11 +204,7 @@ public sealed partial class TaskResolver
                 int k = Math.Min(state.TopK, end - start);
                 if (k == 0) { lower[t] = upper[t] = double.NegativeInfinity; continue; }
                 if (k > top.Length) return false; // an unusually large k: scan everything instead
-                top[..k].Fill(Vector128.Create(double.NegativeInfinity));
-                for (int r = start; r < end; r++)
-                    InsertLargest(top[..k], Vector128.Create(approx[r] + bound[r], approx[r] - bound[r]));
-                var sum = Vector128<double>.Zero;
-                for (int i = 0; i < k; i++) sum += top[i];
+                var sum = k <= 4 ? SumOfLargestFew(approx, bound, start, end, k) : SumOfLargest(top[..k], approx, bound, start, end);
                 upper[t] = sum.GetElement(0) / k + 1e-6;
                 lower[t] = sum.GetElement(1) / k - 1e-6;
             }
@@ -218,6 +220,47 @@ public sealed partial class TaskResolver
     private const int MaxStackTopK = 64;
 
     /// <summary>
+    /// Σ of the k largest row upper bounds (lane 0) and of the k largest row lower bounds (lane 1) of rows
+    /// <paramref name="start"/> to <paramref name="end"/>, largest first (<see cref="InsertLargest"/>).
+    /// </summary>
+    private static Vector128<double> SumOfLargest(Span<Vector128<double>> top, ReadOnlySpan<double> approx, ReadOnlySpan<double> bound, int start, int end)
+    {
+        top.Fill(Vector128.Create(double.NegativeInfinity));
+        for (int r = start; r < end; r++)
+            InsertLargest(top, Vector128.Create(approx[r] + bound[r], approx[r] - bound[r]));
+        var sum = Vector128<double>.Zero;
+        foreach (var v in top) sum += v;
+        return sum;
+    }
+
+    /// <summary>
+    /// <see cref="SumOfLargest"/> for k ≤ 4 (the usual top-k) with the list in registers: the same compare-exchanges
+    /// and the same sum, largest first, so the same doubles.
+    /// </summary>
+    private static Vector128<double> SumOfLargestFew(ReadOnlySpan<double> approx, ReadOnlySpan<double> bound, int start, int end, int k)
+    {
+        var t0 = Vector128.Create(double.NegativeInfinity);
+        Vector128<double> t1 = t0, t2 = t0, t3 = t0;
+        for (int r = start; r < end; r++)
+        {
+            var v = Vector128.Create(approx[r] + bound[r], approx[r] - bound[r]);
+            (t0, v) = (MaxOf(t0, v), MinOf(t0, v));
+            if (k > 1) (t1, v) = (MaxOf(t1, v), MinOf(t1, v));
+            if (k > 2) (t2, v) = (MaxOf(t2, v), MinOf(t2, v));
+            if (k > 3) t3 = MaxOf(t3, v);
+        }
+        var sum = Vector128<double>.Zero + t0;
+        if (k > 1) sum += t1;
+        if (k > 2) sum += t2;
+        if (k > 3) sum += t3;
+        return sum;
+    }
+
+    private static Vector128<double> MaxOf(Vector128<double> a, Vector128<double> b) => Sse2.IsSupported ? Sse2.Max(a, b) : Vector128.Max(a, b);
+
+    private static Vector128<double> MinOf(Vector128<double> a, Vector128<double> b) => Sse2.IsSupported ? Sse2.Min(a, b) : Vector128.Min(a, b);
+
+    /// <summary>
     /// Keeps the <c>top.Length</c> largest values seen in each lane, in descending order, without branches on the values
     /// (a compare-exchange down the list; the screen's bounds are finite): which rows rank is unpredictable, so a branchy
     /// insertion would mispredict on most rows.
@@ -227,8 +270,8 @@ public sealed partial class TaskResolver
         for (int j = 0; j < top.Length; j++)
         {
             var kept = top[j];
-            top[j] = Sse2.IsSupported ? Sse2.Max(kept, v) : Vector128.Max(kept, v);
-            v = Sse2.IsSupported ? Sse2.Min(kept, v) : Vector128.Min(kept, v);
+            top[j] = MaxOf(kept, v);
+            v = MinOf(kept, v);
         }
     }
 
@@ -242,6 +285,37 @@ public sealed partial class TaskResolver
         if (state.Scoring == ScoringStrategy.TopK) return ExactTopK(state, vector, task);
         if (state.Scoring != ScoringStrategy.Blend) return best;
         float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(task * state.Dimensions, state.Dimensions));
+        return state.BlendCentroidWeight * c + (1 - state.BlendCentroidWeight) * best;
+    }
+
+    /// <summary>
+    /// <see cref="ExactScore(ResolverState, ReadOnlySpan{float}, int, out int)"/> for best-phrase and blend scoring with
+    /// the screen's row upper bounds: the same best score and row as <see cref="ExactBest"/>, but a row whose upper bound
+    /// is below the best exact score found so far cannot reach it (nor tie it) and is not scored. The row with the
+    /// largest upper bound goes first, so usually one or two of a task's rows are scored.
+    /// </summary>
+    private static float ExactScore(ResolverState state, ReadOnlySpan<float> vector, int task, ReadOnlySpan<double> rowUpper, out int row)
+    {
+        int dims = state.Dimensions, start = state.TaskRowStart[task], end = state.TaskRowStart[task + 1];
+        var phrases = state.Phrases.AsSpan();
+        row = 0;
+        float best = float.NegativeInfinity;
+        if (end > start)
+        {
+            int first = start;
+            for (int r = start + 1; r < end; r++) if (rowUpper[r] > rowUpper[first]) first = r;
+            best = TensorPrimitives.Dot(vector, phrases.Slice(first * dims, dims));
+            row = first;
+            for (int r = start; r < end; r++)
+            {
+                if (r == first || rowUpper[r] < best) continue;
+                float s = TensorPrimitives.Dot(vector, phrases.Slice(r * dims, dims));
+                // The first row of the highest score, as the full scan keeps it.
+                if (s > best || (s == best && r < row)) { best = s; row = r; }
+            }
+        }
+        if (state.Scoring != ScoringStrategy.Blend) return best;
+        float c = TensorPrimitives.Dot(vector, state.Centroids.AsSpan(task * dims, dims));
         return state.BlendCentroidWeight * c + (1 - state.BlendCentroidWeight) * best;
     }
 

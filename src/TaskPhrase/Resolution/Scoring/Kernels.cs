@@ -18,9 +18,40 @@ internal static class Kernels
     public static float Dot(ReadOnlySpan<float> x, ReadOnlySpan<float> y)
     {
         if (x.Length != y.Length) throw new ArgumentException($"Vectors of {x.Length} and {y.Length} elements.", nameof(y));
-        Span<float> result = stackalloc float[1];
-        Dot4(x, y, 0, 1, result);
-        return result[0];
+        // The lanes, their order of reduction and the tail of Dot4, for one row (Dot4 with one row repeats the work
+        // of four): the same float operations in the same order, so the same result bit for bit.
+        int n = x.Length, i = 0;
+        ref float rx = ref MemoryMarshal.GetReference(x);
+        ref float ry = ref MemoryMarshal.GetReference(y);
+        float sum = 0f;
+        if (Vector256.IsHardwareAccelerated)
+        {
+            Vector256<float> a0 = default, a1 = default;
+            for (; i + Lanes <= n; i += Lanes)
+            {
+                a0 += Vector256.Multiply(Vector256.LoadUnsafe(ref rx, (nuint)i), Vector256.LoadUnsafe(ref ry, (nuint)i));
+                a1 += Vector256.Multiply(Vector256.LoadUnsafe(ref rx, (nuint)(i + 8)), Vector256.LoadUnsafe(ref ry, (nuint)(i + 8)));
+            }
+            for (int j = 0; j < 8; j++) sum += a0.GetElement(j);
+            for (int j = 0; j < 8; j++) sum += a1.GetElement(j);
+        }
+        else
+        {
+            Vector128<float> a0 = default, a1 = default, a2 = default, a3 = default;
+            for (; i + Lanes <= n; i += Lanes)
+            {
+                a0 += Vector128.Multiply(Vector128.LoadUnsafe(ref rx, (nuint)i), Vector128.LoadUnsafe(ref ry, (nuint)i));
+                a1 += Vector128.Multiply(Vector128.LoadUnsafe(ref rx, (nuint)(i + 4)), Vector128.LoadUnsafe(ref ry, (nuint)(i + 4)));
+                a2 += Vector128.Multiply(Vector128.LoadUnsafe(ref rx, (nuint)(i + 8)), Vector128.LoadUnsafe(ref ry, (nuint)(i + 8)));
+                a3 += Vector128.Multiply(Vector128.LoadUnsafe(ref rx, (nuint)(i + 12)), Vector128.LoadUnsafe(ref ry, (nuint)(i + 12)));
+            }
+            for (int j = 0; j < 4; j++) sum += a0.GetElement(j);
+            for (int j = 0; j < 4; j++) sum += a1.GetElement(j);
+            for (int j = 0; j < 4; j++) sum += a2.GetElement(j);
+            for (int j = 0; j < 4; j++) sum += a3.GetElement(j);
+        }
+        for (; i < n; i++) sum += Unsafe.Add(ref rx, i) * Unsafe.Add(ref ry, i);
+        return sum;
     }
 
     /// <summary>

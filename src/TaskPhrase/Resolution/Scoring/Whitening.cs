@@ -182,8 +182,19 @@ public sealed class Whitening
         if (scores.Length != TaskCount) throw new ArgumentException($"Expected room for {TaskCount} scores, got {scores.Length}.", nameof(scores));
         int d = Dimensions;
         float norm = MathF.Sqrt(Kernels.Dot(y, y));
-        for (int t = 0; t < TaskCount; t++)
-            scores[t] = norm > 0 ? Kernels.Dot(y, _centroids.AsSpan(t * d, d)) / norm : 0f;
+        if (!(norm > 0))
+        {
+            scores.Clear();
+            return;
+        }
+        // Four centroids per pass (each result bit-identical to Kernels.Dot).
+        Span<float> dots = stackalloc float[4];
+        for (int t = 0; t < TaskCount; t += 4)
+        {
+            int count = Math.Min(4, TaskCount - t);
+            Kernels.Dot4(y, _centroids, t, count, dots);
+            for (int k = 0; k < count; k++) scores[t + k] = dots[k] / norm;
+        }
     }
 
     internal static void Normalize(Span<float> v)

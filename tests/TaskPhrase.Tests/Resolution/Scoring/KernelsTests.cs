@@ -34,6 +34,27 @@ public class KernelsTests
     }
 
     [Fact]
+    public void Dot_AnyLength_BitIdenticalToTheSixteenLaneDefinition()
+    {
+        // The documented order, written out in scalar float: lane j sums x[i]·y[i] for i = j, j + 16, … over the whole
+        // blocks of 16, the lanes are added in order 0..15, then the tail elements in index order. Any vector width
+        // must give exactly this.
+        Gen.Int[0, 90].SelectMany(n => Gen.Float[-3, 3].Array[2 * n].Select(v => (n, v))).Sample(t =>
+        {
+            var (n, v) = t;
+            var x = v.AsSpan(0, n);
+            var y = v.AsSpan(n, n);
+            var lanes = new float[16];
+            int blocks = n / 16 * 16;
+            for (int i = 0; i < blocks; i++) lanes[i % 16] += x[i] * y[i];
+            float expected = 0f;
+            foreach (float lane in lanes) expected += lane;
+            for (int i = blocks; i < n; i++) expected += x[i] * y[i];
+            Assert.Equal(BitConverter.SingleToInt32Bits(expected), BitConverter.SingleToInt32Bits(Kernels.Dot(x, y)));
+        }, iter: 300);
+    }
+
+    [Fact]
     public void AddScaled_Floats_EqualsElementwiseMultiplyThenAdd()
     {
         Gen.Float[-2, 2].Array[0, 50].Select(x => x).Sample(x =>

@@ -74,8 +74,10 @@ public class PhraseScreenTests
             for (int trial = 0; trial < 40; trial++)
             {
                 var v = Gaussian(random, dims);
-                Assert.True(screen.Bounds(v, phraseTask, lower, upper));
+                var rowUpper = new double[rows];
+                Assert.True(screen.Bounds(v, phraseTask, lower, upper, rowUpper));
                 Assert.True(screen.RowBounds(v, approx, bound));
+                for (int r = 0; r < rows; r++) Assert.Equal(approx[r] + bound[r], rowUpper[r]);
                 var expectedUpper = Enumerable.Repeat(double.NegativeInfinity, tasks).ToArray();
                 var expectedLower = Enumerable.Repeat(double.NegativeInfinity, tasks).ToArray();
                 var best = Enumerable.Repeat(float.NegativeInfinity, tasks).ToArray();

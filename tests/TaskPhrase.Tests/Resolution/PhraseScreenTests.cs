@@ -35,7 +35,7 @@ public class PhraseScreenTests
             var v = Gaussian(random);
             if (trial % 4 == 0) phrases.AsSpan(random.Next(rows) * Dims, Dims).CopyTo(v);
             Assert.True(screen.Bounds(v, oneRowPerTask, lower, upper));
-            // The four-row fold and the one-row scan (RowBounds) do the same arithmetic: the same doubles, bit for bit.
+            // The task-maxima fold and the per-row intervals (RowBounds) share one arithmetic: the same doubles, bit for bit.
             Assert.True(screen.RowBounds(v, approx, bound));
             for (int r = 0; r < rows; r++)
             {

@@ -55,6 +55,63 @@ internal static class Kernels
     }
 
     /// <summary>
+    /// The dot products of the first <c>row.Length</c> elements of <paramref name="x"/> with each of four rows of
+    /// different lengths that hold the same number of whole blocks of 16 (e.g. consecutive rows of a packed triangular
+    /// matrix), into <paramref name="result"/>; each bit-identical to <see cref="Dot(ReadOnlySpan{float}, ReadOnlySpan{float})"/>
+    /// of that prefix of x and the row. The blocks share their loads of x.
+    /// </summary>
+    public static void DotSameBlocks4(ReadOnlySpan<float> x, ReadOnlySpan<float> row0, ReadOnlySpan<float> row1, ReadOnlySpan<float> row2,
+        ReadOnlySpan<float> row3, Span<float> result)
+    {
+        int blocks = row0.Length / Lanes;
+        if (row1.Length / Lanes != blocks || row2.Length / Lanes != blocks || row3.Length / Lanes != blocks || result.Length < 4
+            || Math.Max(Math.Max(row0.Length, row1.Length), Math.Max(row2.Length, row3.Length)) > x.Length)
+            throw new ArgumentException("Need four rows with the same number of whole blocks of 16, none longer than x, and room for four results.");
+        if (!Vector256.IsHardwareAccelerated)
+        {
+            result[0] = Dot(x[..row0.Length], row0);
+            result[1] = Dot(x[..row1.Length], row1);
+            result[2] = Dot(x[..row2.Length], row2);
+            result[3] = Dot(x[..row3.Length], row3);
+            return;
+        }
+        ref float rx = ref MemoryMarshal.GetReference(x);
+        ref float r0 = ref MemoryMarshal.GetReference(row0);
+        ref float r1 = ref MemoryMarshal.GetReference(row1);
+        ref float r2 = ref MemoryMarshal.GetReference(row2);
+        ref float r3 = ref MemoryMarshal.GetReference(row3);
+        Vector256<float> a00 = default, a01 = default, a10 = default, a11 = default, a20 = default, a21 = default, a30 = default, a31 = default;
+        int end = blocks * Lanes;
+        for (int i = 0; i < end; i += Lanes)
+        {
+            var x0 = Vector256.LoadUnsafe(ref rx, (nuint)i);
+            var x1 = Vector256.LoadUnsafe(ref rx, (nuint)(i + 8));
+            a00 += Vector256.Multiply(x0, Vector256.LoadUnsafe(ref r0, (nuint)i));
+            a01 += Vector256.Multiply(x1, Vector256.LoadUnsafe(ref r0, (nuint)(i + 8)));
+            a10 += Vector256.Multiply(x0, Vector256.LoadUnsafe(ref r1, (nuint)i));
+            a11 += Vector256.Multiply(x1, Vector256.LoadUnsafe(ref r1, (nuint)(i + 8)));
+            a20 += Vector256.Multiply(x0, Vector256.LoadUnsafe(ref r2, (nuint)i));
+            a21 += Vector256.Multiply(x1, Vector256.LoadUnsafe(ref r2, (nuint)(i + 8)));
+            a30 += Vector256.Multiply(x0, Vector256.LoadUnsafe(ref r3, (nuint)i));
+            a31 += Vector256.Multiply(x1, Vector256.LoadUnsafe(ref r3, (nuint)(i + 8)));
+        }
+        result[0] = Finish(a00, a01, x, row0, end);
+        result[1] = Finish(a10, a11, x, row1, end);
+        result[2] = Finish(a20, a21, x, row2, end);
+        result[3] = Finish(a30, a31, x, row3, end);
+    }
+
+    /// <summary><see cref="Dot(ReadOnlySpan{float}, ReadOnlySpan{float})"/>'s reduction of its 16 lanes in order, then its tail from <paramref name="start"/>.</summary>
+    private static float Finish(Vector256<float> low, Vector256<float> high, ReadOnlySpan<float> x, ReadOnlySpan<float> row, int start)
+    {
+        float sum = 0f;
+        for (int j = 0; j < 8; j++) sum += low.GetElement(j);
+        for (int j = 0; j < 8; j++) sum += high.GetElement(j);
+        for (int k = start; k < row.Length; k++) sum += x[k] * row[k];
+        return sum;
+    }
+
+    /// <summary>
     /// The dot products of <paramref name="x"/> with <paramref name="count"/> (1 to 4) rows of <paramref name="rows"/>
     /// starting at <paramref name="first"/> (rows as wide as x, packed), into <paramref name="result"/>; each bit-identical
     /// to <see cref="Dot(ReadOnlySpan{float}, ReadOnlySpan{float})"/> of x and that row. Sharing the loads of x across

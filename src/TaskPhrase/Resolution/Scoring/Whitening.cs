@@ -37,6 +37,9 @@ public sealed class Whitening
         _centroids = centroids;
     }
 
+    /// <summary>W's lower triangle packed by rows and the centring mean (for tests of <see cref="Apply"/>).</summary>
+    internal (float[] Lower, float[] Mean) Parameters => (_lower, _mean);
+
     /// <summary>Width of the embeddings (and of the whitened vectors).</summary>
     public int Dimensions { get; }
 
@@ -161,8 +164,26 @@ public sealed class Whitening
             throw new ArgumentException($"The whitening is {d} wide; got an embedding of {embedding.Length} and a destination of {destination.Length}.");
         Span<float> centred = d <= 1024 ? stackalloc float[d] : new float[d];
         for (int a = 0; a < d; a++) centred[a] = embedding[a] - _mean[a];
-        for (int a = 0, k = 0; a < d; k += a + 1, a++)
-            destination[a] = Kernels.Dot(_lower.AsSpan(k, a + 1), centred[..(a + 1)]);
+        // Row a of the packed lower triangle starts at a(a+1)/2 and holds a + 1 values. Four consecutive rows with the
+        // same number of whole blocks of 16 share their loads (each result bit-identical to Kernels.Dot).
+        Span<float> four = stackalloc float[4];
+        int row = 0, offset = 0;
+        while (row < d)
+        {
+            if (row + 3 < d && (row + 1) / 16 == (row + 4) / 16)
+            {
+                var lower = _lower.AsSpan();
+                Kernels.DotSameBlocks4(centred, lower.Slice(offset, row + 1), lower.Slice(offset + row + 1, row + 2),
+                    lower.Slice(offset + 2 * row + 3, row + 3), lower.Slice(offset + 3 * row + 6, row + 4), four);
+                four.CopyTo(destination[row..]);
+                offset += 4 * row + 10;
+                row += 4;
+                continue;
+            }
+            destination[row] = Kernels.Dot(_lower.AsSpan(offset, row + 1), centred[..(row + 1)]);
+            offset += row + 1;
+            row++;
+        }
     }
 
     /// <summary>

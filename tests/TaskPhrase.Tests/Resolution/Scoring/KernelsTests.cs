@@ -55,6 +55,27 @@ public class KernelsTests
     }
 
     [Fact]
+    public void DotSameBlocks4_RowsOfOneBlockCount_BitIdenticalToDotOfEachPrefix()
+    {
+        // Four rows of lengths 16·b + t (t from 0 to 15 each), as consecutive rows of a triangular matrix have.
+        Gen.Int[0, 5].SelectMany(b => Gen.Int[0, 15].Array[4].SelectMany(t => Gen.Float[-3, 3].Array[16 * b + 16 + 4 * (16 * b + 16)].Select(v => (b, t, v)))).Sample(c =>
+        {
+            var (b, t, v) = c;
+            int width = 16 * b + 16;
+            var x = v.AsSpan(0, width).ToArray();
+            var rows = Enumerable.Range(0, 4).Select(r => v.AsSpan(width * (r + 1), 16 * b + t[r]).ToArray()).ToArray();
+            var result = new float[4];
+            Kernels.DotSameBlocks4(x, rows[0], rows[1], rows[2], rows[3], result);
+            for (int r = 0; r < 4; r++)
+                Assert.Equal(BitConverter.SingleToInt32Bits(Kernels.Dot(rows[r], x.AsSpan(0, rows[r].Length))), BitConverter.SingleToInt32Bits(result[r]));
+        }, iter: 300);
+    }
+
+    [Fact]
+    public void DotSameBlocks4_DifferentBlockCounts_Throws()
+        => Assert.Throws<ArgumentException>(() => Kernels.DotSameBlocks4(new float[40], new float[15], new float[16], new float[15], new float[15], new float[4]));
+
+    [Fact]
     public void AddScaled_Floats_EqualsElementwiseMultiplyThenAdd()
     {
         Gen.Float[-2, 2].Array[0, 50].Select(x => x).Sample(x =>

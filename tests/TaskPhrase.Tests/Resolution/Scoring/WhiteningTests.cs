@@ -54,6 +54,27 @@ public class WhiteningTests
             }
     }
 
+    [Theory]
+    [InlineData(6)]
+    [InlineData(70)] // rows of 1 to 70 values: groups of four rows with one block count, and the single rows between
+    public void Apply_AnyWidth_BitIdenticalToOneDotPerRow(int d)
+    {
+        // y[a] = Σ W[a, 0..a]·(x − m)[0..a] with the deterministic dot (Kernels.Dot), row by row: the reference.
+        var (x, labels) = Clusters(tasks: 3, perTask: 2 * d, dims: d);
+        var w = Whitening.Fit(x, labels, 3, d);
+        var (lower, mean) = w.Parameters;
+        var y = new float[d];
+        for (int i = 0; i < labels.Length; i += 7)
+        {
+            var e = x.AsSpan(i * d, d);
+            w.Apply(e, y);
+            var centred = new float[d];
+            for (int a = 0; a < d; a++) centred[a] = e[a] - mean[a];
+            for (int a = 0, k = 0; a < d; k += a + 1, a++)
+                Assert.Equal(BitConverter.SingleToInt32Bits(Kernels.Dot(lower.AsSpan(k, a + 1), centred.AsSpan(0, a + 1))), BitConverter.SingleToInt32Bits(y[a]));
+        }
+    }
+
     [Fact]
     public void ScoreTasks_TaskMean_ScoresOneForItsTask()
     {

@@ -212,7 +212,8 @@ public class PhraseScreenTests
     [InlineData(ScoringStrategy.Blend, 5)]
     [InlineData(ScoringStrategy.TopK, 1)]
     [InlineData(ScoringStrategy.TopK, 5)]
-    public void Resolve_WithScreen_EqualsFullScan(ScoringStrategy strategy, int candidates)
+    [InlineData(ScoringStrategy.TopK, 5, 6)] // k above four: the list of largest bounds kept in memory, not registers
+    public void Resolve_WithScreen_EqualsFullScan(ScoringStrategy strategy, int candidates, int topK = 3)
     {
         var random = new Random(40 + candidates);
         string[] verbs = ["move", "fetch", "lift", "carry", "bring", "hold", "take", "pass", "find", "grab"];
@@ -242,7 +243,7 @@ public class PhraseScreenTests
         var registry = new TaskRegistry(tasks, RegistryDefaults.Standard, "screen-test");
         ResolverOptions Options(bool screen) => new()
         {
-            Scoring = strategy, UnintelligibleGuard = false, Candidates = candidates, AcceptOverride = 0f, PhraseScreen = screen,
+            Scoring = strategy, UnintelligibleGuard = false, Candidates = candidates, AcceptOverride = 0f, PhraseScreen = screen, TopK = topK,
         };
         var screened = TaskResolver.Create(registry, generator, Options(true));
         var full = TaskResolver.Create(registry, generator, Options(false));
@@ -259,8 +260,9 @@ public class PhraseScreenTests
             if (expected.Detail?.StartsWith("mixes tasks", StringComparison.Ordinal) == true) mixed++;
             else kept++;
         }
-        // Both sides of the anchor rule were exercised.
-        Assert.True(mixed >= 20 && kept >= 20, $"anchor rule fired {mixed} times, not {kept} times");
+        // Both sides of the anchor rule were exercised (at the default k; with k = 6 the top-k means are closer and the
+        // rule fires for nearly every utterance, which still compares every field above).
+        if (topK == 3) Assert.True(mixed >= 20 && kept >= 20, $"anchor rule fired {mixed} times, not {kept} times");
     }
 
     private static string Object(int t) => $"ob{(char)('a' + t / 26)}{(char)('a' + t % 26)}ject";

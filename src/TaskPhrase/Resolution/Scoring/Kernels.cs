@@ -32,8 +32,7 @@ internal static class Kernels
                 a0 += Vector256.Multiply(Vector256.LoadUnsafe(ref rx, (nuint)i), Vector256.LoadUnsafe(ref ry, (nuint)i));
                 a1 += Vector256.Multiply(Vector256.LoadUnsafe(ref rx, (nuint)(i + 8)), Vector256.LoadUnsafe(ref ry, (nuint)(i + 8)));
             }
-            for (int j = 0; j < 8; j++) sum += a0.GetElement(j);
-            for (int j = 0; j < 8; j++) sum += a1.GetElement(j);
+            return Finish(a0, a1, x, y, i);
         }
         else
         {

@@ -38,6 +38,7 @@ internal static class OpProfile
                 file = embedder.Session.EndProfiling();
             }
             var byOp = new Dictionary<string, double>();
+            var nodes = new Dictionary<string, HashSet<string>>();
             using (var json = JsonDocument.Parse(File.ReadAllText(file)))
             {
                 foreach (var e in json.RootElement.EnumerateArray())
@@ -45,15 +46,17 @@ internal static class OpProfile
                     if (e.GetProperty("cat").GetString() != "Node" || !e.TryGetProperty("args", out var args2) || !args2.TryGetProperty("op_name", out var op)) continue;
                     string key = op.GetString() ?? "?";
                     byOp[key] = byOp.GetValueOrDefault(key) + e.GetProperty("dur").GetDouble();
+                    if (!nodes.TryGetValue(key, out var names)) nodes[key] = names = new HashSet<string>(StringComparer.Ordinal);
+                    names.Add(e.GetProperty("name").GetString() ?? "?");
                 }
             }
             File.Delete(file);
             double total = byOp.Values.Sum();
-            Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{name} ({dir}), {threads} thread(s), {(single ? "200 single commands" : "1,000 phrases batched")}: node time {total / 1000:0.0} ms"));
-            Console.WriteLine("| operator | ms | share |");
-            Console.WriteLine("| --- | ---: | ---: |");
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{name} ({dir}), {threads} thread(s), {(single ? "200 single commands" : "1,000 phrases batched")}: node time {total / 1000:0.0} ms, {nodes.Values.Sum(n => n.Count)} nodes"));
+            Console.WriteLine("| operator | nodes | ms | share |");
+            Console.WriteLine("| --- | ---: | ---: | ---: |");
             foreach (var (op, us) in byOp.OrderByDescending(kv => kv.Value))
-                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"| {op} | {us / 1000:0.0} | {us / total:P1} |"));
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"| {op} | {nodes[op].Count} | {us / 1000:0.0} | {us / total:P1} |"));
             Console.WriteLine();
         }
     }

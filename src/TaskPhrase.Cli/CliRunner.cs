@@ -21,7 +21,9 @@ internal static class CliRunner
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException or InvalidDataException or JsonException or FormatException or ArgumentException)
         {
-            context.Err.WriteLine($"error: {e.Message}");
+            // An argument error names the library's parameter ("(Parameter 'layers')"), which means nothing on the command line.
+            string message = e is ArgumentException { ParamName: { } name } ? e.Message.Replace($" (Parameter '{name}')", "", StringComparison.Ordinal) : e.Message;
+            context.Err.WriteLine($"error: {message}");
             if (verbose) context.Err.WriteLine(e);
             return ExitCodes.BadInput;
         }

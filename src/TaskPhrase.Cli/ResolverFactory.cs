@@ -32,6 +32,16 @@ internal static class ResolverFactory
     }
 
     /// <summary>
+    /// Warns on standard error when the registry names a model its thresholds were tuned for (<c>model:</c>) and
+    /// another one is loaded: thresholds do not carry over between models (cosines sit higher or lower).
+    /// </summary>
+    public static void WarnIfTunedForAnotherModel(CliContext context, TaskResolver resolver)
+    {
+        if (resolver.Registry.ModelId is { Length: > 0 } tuned && !string.Equals(tuned, resolver.Model.Id, StringComparison.OrdinalIgnoreCase))
+            context.Err.WriteLine($"warning: the registry's thresholds were tuned for the model '{tuned}', but '{resolver.Model.Id}' is loaded; tune the registry with this model ('taskphrase tune --model …') before trusting its decisions.");
+    }
+
+    /// <summary>
     /// Loads the model and a resolver from <c>--registry</c> or <c>--index</c>. With an index the model loads on a
     /// worker thread while the index is read and the resolver set up (no forward pass needs it until the first
     /// resolve); the index is then checked against the real model. Errors come in the same order as when loading one
@@ -44,7 +54,12 @@ internal static class ResolverFactory
         if (registryPath is not null)
         {
             var lease = context.Model(modelDirectory);
-            try { return (lease, Create(registryPath, null, lease, options)); }
+            try
+            {
+                var created = Create(registryPath, null, lease, options);
+                WarnIfTunedForAnotherModel(context, created);
+                return (lease, created);
+            }
             catch { lease.Dispose(); throw; }
         }
         var loading = Task.Run(() => context.Model(modelDirectory));
@@ -66,6 +81,7 @@ internal static class ResolverFactory
         var loaded = loading.GetAwaiter().GetResult();
         try { EnsureModel(index, loaded); }
         catch { loaded.Dispose(); throw; }
+        WarnIfTunedForAnotherModel(context, resolver);
         return (loaded, resolver);
     }
 

@@ -31,6 +31,7 @@ internal static class AuditCommand
         {
             using var lease = context.BatchModel(parse.GetValue(model));
             var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
+            ResolverFactory.WarnIfTunedForAnotherModel(context, resolver);
             string probesPath = parse.GetValue(probes)!;
             var suite = ProbeRunner.LoadSuite(probesPath, resolver.Registry);
             var resolutions = ProbeRunner.ResolveAll(context, resolver, suite.Cases);

@@ -76,6 +76,8 @@ internal static class TuneCommand
                     progress: p => ReportProgress(context, p));
                 result = search.Result;
             }
+            // The tuned copy names the model its thresholds were tuned with (its 'model' key).
+            result = result with { ModelId = lease.Embedder.Model.Id };
             string suiteHash = Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(probesPath)));
             string comment = TunedRegistryWriter.BuildProvenanceComment(result, Path.GetFileName(probesPath), suiteHash, DateTimeOffset.UtcNow, search?.Outcomes);
             string outPath = parse.GetValue(output)!;

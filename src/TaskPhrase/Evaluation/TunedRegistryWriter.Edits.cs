@@ -32,6 +32,7 @@ public static partial class TunedRegistryWriter
         text = StripHeader(text);
         var root = Parse(text, source);
         var context = new EditContext(text, source, newline);
+        EditModel(context, root, result);
         EditDefaults(context, root, result);
         EditScoring(context, root, result);
         EditTasks(context, root, result);
@@ -136,6 +137,42 @@ public static partial class TunedRegistryWriter
         }
         if (at == c.Text.Length && at > 0 && c.Text[^1] != '\n') block = c.Newline + block;
         c.Add(at, at, block);
+    }
+
+    /// <summary>Sets the <c>model</c> key (the model the thresholds were tuned for) to <see cref="TuningResult.ModelId"/>: in place, else after <c>version</c>, else first.</summary>
+    private static void EditModel(EditContext c, YamlMappingNode root, TuningResult result)
+    {
+        if (result.ModelId is not { Length: > 0 } id) return;
+        string text = ModelText(id);
+        var value = Find(root, "model", out var key);
+        if (key is not null)
+        {
+            if (value is not YamlScalarNode scalar || scalar.Value == id) return;
+            if (IsNull(scalar)) c.Add(Index(key.Start), NodeEnd(c.Text, scalar), "model: " + text);
+            else c.Add(Index(scalar.Start), NodeEnd(c.Text, scalar), text);
+            return;
+        }
+        string indent = new(' ', Column(root.Children.First().Key));
+        int at = Find(root, "version", out _) is YamlScalarNode version
+            ? NextLineStart(c.Text, Index(version.End))
+            : LineStart(c.Text, Index(root.Children.First().Key.Start));
+        string line = $"{indent}model: {text}{c.Newline}";
+        if (at == c.Text.Length && at > 0 && c.Text[^1] != '\n') line = c.Newline + line;
+        c.Add(at, at, line);
+    }
+
+    /// <summary>A model id as a YAML scalar: plain when it is made of letters, digits and <c>. _ / -</c>, else double-quoted.</summary>
+    private static string ModelText(string id)
+    {
+        if (id.All(ch => char.IsAsciiLetterOrDigit(ch) || ch is '.' or '_' or '/' or '-') && char.IsAsciiLetterOrDigit(id[0])) return id;
+        var sb = new StringBuilder("\"");
+        foreach (char ch in id)
+        {
+            if (ch is '"' or '\\') sb.Append('\\').Append(ch);
+            else if (char.IsControl(ch)) sb.Append($"\\u{(int)ch:x4}");
+            else sb.Append(ch);
+        }
+        return sb.Append('"').ToString();
     }
 
     /// <summary>
@@ -254,6 +291,8 @@ public static partial class TunedRegistryWriter
     {
         var root = Parse(output, source + " (tuned copy)");
         string Problem(string what) => $"Internal error: the tuned copy of {source} {what}. Please report this with the registry file.";
+        if (result.ModelId is { Length: > 0 } tunedWith && (Find(root, "model", out _) as YamlScalarNode)?.Value != tunedWith)
+            throw new InvalidOperationException(Problem($"does not name the model '{tunedWith}' it was tuned with"));
         if (Find(root, "defaults", out _) is not YamlMappingNode defaults
             || (Find(defaults, "accept", out _) as YamlScalarNode)?.Value != FormatNumber(result.Accept)
             || (Find(defaults, "margin", out _) as YamlScalarNode)?.Value != FormatNumber(result.Margin))

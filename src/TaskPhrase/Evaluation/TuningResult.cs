@@ -62,6 +62,12 @@ public sealed record TuningResult
     /// </summary>
     public ScoringCandidate? Scoring { get; init; }
 
+    /// <summary>
+    /// Id of the embedding model the probes were scored with, when known: the tuned registry's <c>model</c> key (the
+    /// model its thresholds were tuned for) is set to it. Null leaves that key as it was.
+    /// </summary>
+    public string? ModelId { get; init; }
+
     /// <summary>Number of scored probes the tuning used.</summary>
     public required int ProbeCount { get; init; }
 }

@@ -278,4 +278,34 @@ public class TuningRegistryWriterTests
             File.Delete(path);
         }
     }
+    [Fact]
+    public void Write_ModelId_ReplacesTheModelKeyInPlace()
+    {
+        string text = Write(Harbor, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-layers-4-6" });
+        var output = Load(text);
+        Assert.Equal("all-minilm-l6-v2-layers-4-6", Scalar(output, "model"));
+        Assert.Contains("version: 1\nmodel: all-minilm-l6-v2-layers-4-6\ndefaults:", text.Replace("\r\n", "\n"), StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Write_ModelId_WithoutModelKey_IsAddedAfterVersion()
+    {
+        string yaml = Harbor.Replace("model: all-minilm-l6-v2\n", "", StringComparison.Ordinal);
+        string text = Write(yaml, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" });
+        Assert.Equal("all-minilm-l6-v2-int8", Scalar(Load(text), "model"));
+        Assert.Contains("version: 1\nmodel: all-minilm-l6-v2-int8\n", text.Replace("\r\n", "\n"), StringComparison.Ordinal);
+        // Without version first, the key goes before the first key.
+        string noVersion = yaml.Replace("version: 1\n", "", StringComparison.Ordinal);
+        Assert.Equal("all-minilm-l6-v2-int8", Scalar(Load(Write(noVersion, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" })), "model"));
+    }
+
+    [Theory]
+    [InlineData("my model: v2 # test")]   // YAML indicators are quoted, not parsed as a mapping or a comment
+    [InlineData("quote\"and\\slash")]
+    public void Write_ModelId_NeedingQuotes_RoundTrips(string id)
+        => Assert.Equal(id, Scalar(Load(Write(Harbor, Result(0.68f, 0.03f) with { ModelId = id })), "model"));
+
+    [Fact]
+    public void Write_NoModelId_LeavesTheModelKey()
+        => Assert.Equal("all-minilm-l6-v2", Scalar(Load(Write(Harbor, Result(0.68f, 0.03f))), "model"));
 }

@@ -37,6 +37,7 @@ internal static class CliApp
         root.Subcommands.Add(ServeCommand.Create(context));
         root.Subcommands.Add(QuantizeCommand.Create(context));
         root.Subcommands.Add(PrepareCommand.Create(context));
+        root.Subcommands.Add(PoolLayersCommand.Create(context));
         var parse = root.Parse(args);
         if (UsageErrors(parse) is { Count: > 0 } errors)
         {

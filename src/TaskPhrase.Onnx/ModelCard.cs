@@ -43,6 +43,12 @@ public sealed record ModelCard
     /// </summary>
     [JsonPropertyName("quantization")] public ModelQuantizationInfo? Quantization { get; init; }
 
+    /// <summary>
+    /// Present on models made by <see cref="LayerPooledModel"/>: which encoder layers of which source sit side by side in
+    /// the token states (so <see cref="Dimensions"/> is the source's width times their number).
+    /// </summary>
+    [JsonPropertyName("layers")] public ModelLayersInfo? Layers { get; init; }
+
     /// <summary>True when the card describes a quantised (int8) model.</summary>
     [JsonIgnore] public bool IsQuantized => Quantization is not null;
 
@@ -69,6 +75,9 @@ public sealed record ModelCard
             throw new InvalidDataException($"{path}: \"max_tokens\" must be between 3 and 8192, not {card.MaxTokens}.");
         if (card.Dimensions is < 1 or > 65536)
             throw new InvalidDataException($"{path}: \"dimensions\" must be between 1 and 65536, not {card.Dimensions}.");
+        if (card.Layers is { } layers && (layers.Layers is not { Count: > 0 } || layers.Layers.Any(l => l < 1 || layers.SourceLayers > 0 && l > layers.SourceLayers)
+            || layers.Layers.Zip(layers.Layers.Skip(1)).Any(p => p.Second <= p.First) || card.Dimensions % layers.Layers.Count != 0))
+            throw new InvalidDataException($"{path}: \"layers\" must list ascending encoder layers of the source (1 to \"source_layers\") whose count divides \"dimensions\"; write the model again with 'taskphrase pool-layers'.");
         if (card.Quantization is not null && QuantizationGates.Check(card) is { } failure)
             throw new InvalidDataException($"{path}: the card marks an int8 model but {failure}. Quantise the fp32 model again with 'taskphrase quantize', or use the fp32 model.");
         return card;

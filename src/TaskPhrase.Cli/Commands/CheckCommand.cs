@@ -60,6 +60,9 @@ internal static class CheckCommand
     /// <summary>One line on the model: for int8 models the recorded gate figures against the fixed gates (a card that fails them does not load).</summary>
     internal static string DescribeModel(ModelCard card)
     {
+        if (card.Layers is { } l)
+            return string.Create(CultureInfo.InvariantCulture,
+                $"model {card.Id}: fp32, layers {string.Join(", ", l.Layers)} of {l.SourceLayers} of {l.SourceModelId} (SHA-256 {l.SourceModelSha256}) side by side, {card.Dimensions} dimensions{(l.LastLayerMinCosine is { } lc ? $"; last layer's part to the source embedding min cosine {lc:0.000000}" : "")}; the built-in accept and margin were chosen for the source model: tune the registry with this one");
         if (card.Quantization is not { } q) return $"model {card.Id}: fp32";
         var quality = q.Quality!;
         var m = quality.SimilarityMatrix!;

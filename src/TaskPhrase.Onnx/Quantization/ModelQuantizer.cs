@@ -54,7 +54,7 @@ public static partial class ModelQuantizer
 
         // Stage beside the output (so the final moves stay on one volume) before the long work, so that an output
         // that cannot be written fails at once; evaluate there; publish only on success.
-        string staging = CreateStaging(outputDir);
+        string staging = CreateStaging(outputDir, "the int8 model");
         try
         {
             return QuantizeInto(staging, source, sourceDir, sourceCard, modelPath, outputDir, options, clinc, cancellationToken);
@@ -136,12 +136,15 @@ public static partial class ModelQuantizer
         }
     }
 
-    /// <summary>Checks that <paramref name="outputDir"/> can be a directory and creates a fresh staging directory beside it.</summary>
-    private static string CreateStaging(string outputDir)
+    /// <summary>
+    /// Checks that <paramref name="outputDir"/> can be a directory and creates a fresh staging directory beside it;
+    /// <paramref name="what"/> names the model in messages ("the int8 model").
+    /// </summary>
+    internal static string CreateStaging(string outputDir, string what)
     {
         string trimmed = outputDir.TrimEnd(Path.DirectorySeparatorChar);
         if (File.Exists(trimmed))
-            throw new IOException($"{outputDir}: is a file; the int8 model is a directory (model.onnx, vocab.txt, model.json). Give a new or existing directory as the output.");
+            throw new IOException($"{outputDir}: is a file; {what} is a directory (model.onnx, vocab.txt, model.json). Give a new or existing directory as the output.");
         string parent = Path.GetDirectoryName(trimmed) ?? outputDir;
         string staging = Path.Combine(parent, "." + Path.GetFileName(trimmed) + ".partial-" + Environment.ProcessId);
         try

@@ -27,7 +27,8 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// <item><c>split-N</c>: even rows as look-alikes (N nearest tasks), odd rows as tuning probes; no row is both.</item>
 /// </list>
 /// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does;
-/// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10).</para>
+/// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10); <c>TASKPHRASE_CLINC_MODEL</c> names
+/// another model directory to embed with (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model).</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -62,14 +63,18 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         var variants = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_VARIANTS") ?? "base").Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries);
         string? strategies = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_STRATEGIES");
         var grid = ScoringCandidate.DefaultGrid(strategies is { Length: > 0 } ? strategies.Split(',') : null);
+        using var other = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_MODEL") is { Length: > 0 } dir ? TaskPhrase.Onnx.OnnxEmbedder.Create(dir) : null;
+        Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> embedder =
+            other is null ? fixture.Embedder : new TaskPhrase.Tests.TestDoubles.CachingEmbeddingGenerator(other);
+        if (other is not null) Log($"model {other.Model.Id} ({other.Model.Dimensions} dimensions)");
         foreach (string variant in variants)
         foreach (int k in ks)
         {
-            var (registry, tuning) = Variant(variant, ClincRegistry.Build(k), halfA);
+            var (registry, tuning) = Variant(variant, ClincRegistry.Build(k), halfA, other is null ? ClincEmbeddings.Generator(fixture) : embedder);
             string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"));
             Log($"k={tag}: {registry.Tasks.Sum(t => t.MustReject.Count)} look-alikes, tuning suite {tuning.Count} probes ({tuning.Count(p => !p.IsInScope)} out of scope)");
             var watch = Stopwatch.StartNew();
-            var search = ScoringSearch.Run(registry, fixture.Embedder, tuning, budgets, grid,
+            var search = ScoringSearch.Run(registry, embedder, tuning, budgets, grid,
                 progress: p =>
                 {
                     if (p.Result is null) Log($"k={tag} [{p.Index + 1}/{p.Count}] {p.Candidate.Label} at {watch.Elapsed.TotalSeconds:0} s");
@@ -78,7 +83,7 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
             Log($"k={tag}: search took {watch.Elapsed.TotalSeconds:0} s");
             var bestPerStrategy = search.Outcomes.GroupBy(o => o.Candidate.Strategy)
                 .Select(g => g.Aggregate((x, y) => ScoringSearch.IsBetter(y.Result, x.Result) ? y : x).Candidate).ToHashSet();
-            var memo = new MemoizingEmbeddingGenerator(fixture.Embedder);
+            var memo = new MemoizingEmbeddingGenerator(embedder);
             var textsB = halfB.Select(p => p.Utterance).ToList();
             foreach (var o in search.Outcomes)
             {
@@ -108,10 +113,10 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
     }
 
     /// <summary>The registry and tuning suite of a variant (see the class remarks).</summary>
-    private (TaskPhrase.Registry.TaskRegistry Registry, List<ProbeCase> Tuning) Variant(string variant, TaskPhrase.Registry.TaskRegistry registry, List<ProbeCase> halfA)
+    private static (TaskPhrase.Registry.TaskRegistry Registry, List<ProbeCase> Tuning) Variant(string variant, TaskPhrase.Registry.TaskRegistry registry, List<ProbeCase> halfA,
+        Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> gen)
     {
         var oos = Clinc150.Split("oos_train").Select(r => r.Text).ToList();
-        var gen = ClincEmbeddings.Generator(fixture);
         var probes = (IEnumerable<string> texts) => halfA.Concat(texts.Select(t => new ProbeCase(t, ProbeCase.Reject))).ToList();
         if (variant == "base") return (registry, halfA);
         if (variant == "probes") return (registry, probes(oos));

@@ -28,7 +28,7 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// </list>
 /// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does;
 /// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10); <c>TASKPHRASE_CLINC_MODEL</c> names
-/// another model directory to embed with (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model).</para>
+/// another model directory to embed with; <c>TASKPHRASE_CLINC_OVERRIDES=0</c> turns per-task accept overrides off (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model).</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -74,7 +74,8 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
             string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"));
             Log($"k={tag}: {registry.Tasks.Sum(t => t.MustReject.Count)} look-alikes, tuning suite {tuning.Count} probes ({tuning.Count(p => !p.IsInScope)} out of scope)");
             var watch = Stopwatch.StartNew();
-            var search = ScoringSearch.Run(registry, embedder, tuning, budgets, grid,
+            var tuner = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_OVERRIDES") == "0" ? new ThresholdTuner(new TuningOptions { AllowOverrides = false }) : null;
+            var search = ScoringSearch.Run(registry, embedder, tuning, budgets, grid, tuner,
                 progress: p =>
                 {
                     if (p.Result is null) Log($"k={tag} [{p.Index + 1}/{p.Count}] {p.Candidate.Label} at {watch.Elapsed.TotalSeconds:0} s");

@@ -37,6 +37,7 @@ public sealed class PoolLayersCommandTests(CliFixture cli) : IDisposable
         var check = cli.Run("check", "--registry", Registry, "--model", model);
         Assert.Equal(0, check.Exit);
         Assert.Contains("layers 4, 6 of 6 of all-minilm-l6-v2", check.Out, StringComparison.Ordinal);
+        Assert.Contains("warning tuned-for-another-model: the registry's thresholds were tuned for the model 'all-minilm-l6-v2'", check.Out, StringComparison.Ordinal);
 
         // The example registry says its thresholds were tuned for all-minilm-l6-v2: using it with this model is flagged.
         var resolve = cli.Run("resolve", "--registry", Registry, "--model", model, "could you water the basil");
@@ -53,6 +54,7 @@ public sealed class PoolLayersCommandTests(CliFixture cli) : IDisposable
         var again = cli.Run("resolve", "--registry", tuned, "--model", model, "could you water the basil");
         Assert.Equal(0, again.Exit);
         Assert.DoesNotContain("warning", again.Err, StringComparison.Ordinal);
+        Assert.DoesNotContain("tuned-for-another-model", cli.Run("check", "--registry", tuned, "--model", model).Out, StringComparison.Ordinal);
     }
 
     [Theory]

@@ -38,6 +38,10 @@ internal static class CheckCommand
             }
             var errors = result.Errors.ToList();
             var card = LoadCard(parse.GetValue(model));
+            string checkedWith = card?.Id ?? BuiltInModels.MiniLmL6V2;
+            if (result.Registry?.ModelId is { Length: > 0 } tuned && !string.Equals(tuned, checkedWith, StringComparison.OrdinalIgnoreCase))
+                lint.Insert(0, new LintWarning(LintCodes.TunedForAnotherModel, "", null, null, null, null,
+                    $"the registry's thresholds were tuned for the model '{tuned}' (its 'model' key), not for '{checkedWith}'; tune it with this model ('taskphrase tune --model …') before using them together."));
             if (parse.GetValue(json)) WriteJson(context, path, result, lint, card);
             else WriteHuman(context, path, result, lint, card);
             return errors.Count > 0 ? ExitCodes.CheckFailed : ExitCodes.Success;

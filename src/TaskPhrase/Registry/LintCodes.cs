@@ -3,6 +3,9 @@ namespace TaskPhrase.Registry;
 /// <summary>The codes a <see cref="LintWarning"/> can carry. They are stable: tools may match on them.</summary>
 public static class LintCodes
 {
+    /// <summary>The registry's thresholds were tuned for another model than the one it is checked with.</summary>
+    public const string TunedForAnotherModel = "tuned-for-another-model";
+
     /// <summary>A phrase is as close as <see cref="LintOptions.CollisionSimilarity"/> or closer to a phrase of another task.</summary>
     public const string CrossTaskCollision = "cross-task-collision";
 

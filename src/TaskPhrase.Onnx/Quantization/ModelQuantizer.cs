@@ -108,6 +108,8 @@ public static partial class ModelQuantizer
             Licence = sourceCard.Licence,
             Source = $"int8 ({method}, alpha {options.Alpha.ToString(System.Globalization.CultureInfo.InvariantCulture)}) of {sourceCard.Id}: {sourceCard.Source}",
             Quantization = info,
+            // A layer-pooled source stays layer-pooled: the int8 graph keeps its Concat.
+            Layers = sourceCard.Layers,
         };
 
         try

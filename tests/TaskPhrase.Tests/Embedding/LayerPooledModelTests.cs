@@ -120,6 +120,21 @@ public sealed class LayerPooledModelTests(LayerPooledModelFixture layers, ModelF
     }
 
     [Fact]
+    [Trait("tier", "slow")]
+    public void Quantize_LayerPooledModel_KeepsItsLayersAndWidth()
+    {
+        string output = Path.Combine(layers.Root, "int8");
+        var result = TaskPhrase.Onnx.Quantization.ModelQuantizer.Quantize(layers.Default.OutputDirectory, output);
+        Assert.True(result.Passed, result.Failure);
+        var card = ModelCard.Load(Path.Combine(output, "model.json"));
+        Assert.Equal(768, card.Dimensions);
+        Assert.Equal([4, 6], card.Layers!.Layers);
+        Assert.Equal("all-minilm-l6-v2-layers-4-6", card.Quantization!.SourceModelId);
+        var e = Assert.Throws<InvalidDataException>(() => LayerPooledModel.Write(output, Path.Combine(layers.Root, "from-int8")));
+        Assert.Contains("int8", e.Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void Write_FromALayerPooledModel_IsRefused()
     {
         var e = Assert.Throws<InvalidDataException>(() => LayerPooledModel.Write(layers.Default.OutputDirectory, Path.Combine(layers.Root, "twice")));

@@ -13,10 +13,15 @@ namespace TaskPhrase.Onnx;
 /// Pooling the outputs of several layers of a frozen encoder is common practice for feature extraction; on CLINC150
 /// with 10 phrases per intent, layers 4 and 6 of all-MiniLM-L6-v2 raised the learned head's held-out in-scope accuracy
 /// at a 5 % wrong-task budget from 75.5 % to 78.1 % (docs/clinc150-strategies.md). Deterministic: the same source and
-/// layers give byte-identical files. The new model is checked before it is written: the part of its embedding that
-/// comes from the last layer, renormalised, must match the source model's embedding on the built-in held-out phrases.
+/// layers give byte-identical files. The new model is checked before it is written: its embeddings of the built-in
+/// held-out phrases must be finite, and when the last layer is among the chosen ones, the part of the embedding that
+/// comes from it, renormalised, must match the source model's embedding.
 /// </summary>
-/// <remarks>Thread-safe: no shared state; each call loads its own sessions.</remarks>
+/// <remarks>
+/// Thread-safe for different output directories: no shared state, each call loads its own sessions. Files are staged
+/// beside the output and moved into it one by one, so a failure during the final moves can leave a mix of old and new
+/// files (the card's hash then refuses the model at load); write again to repair.
+/// </remarks>
 public static class LayerPooledModel
 {
     /// <summary>Lowest accepted cosine between the source embedding and the last layer's part of the new one.</summary>
@@ -79,7 +84,13 @@ public static class LayerPooledModel
         }
         var (outputName, layerOutputs) = FindLayerOutputs(model.Graph, modelPath);
         int depth = layerOutputs.Count;
+        if (depth < 2)
+            throw new InvalidDataException($"{modelPath}: the encoder has one layer; there is nothing to pool beside it.");
+        if (id is not null && string.IsNullOrWhiteSpace(id))
+            throw new ArgumentException("The id of the new model must not be empty; leave it out for <source id>-layers-<l1>-<l2>….", nameof(id));
         var chosen = CheckLayers(layers ?? DefaultLayers(depth), depth);
+        if ((long)sourceCard.Dimensions * chosen.Length > 65536)
+            throw new ArgumentException($"{chosen.Length} layers of {sourceCard.Dimensions} dimensions exceed the 65,536 a model card allows; choose fewer layers.", nameof(layers));
         cancellationToken.ThrowIfCancellationRequested();
 
         Rewrite(model.Graph, outputName, layerOutputs, chosen, sourceCard.Dimensions);

@@ -75,9 +75,9 @@ public sealed record ModelCard
             throw new InvalidDataException($"{path}: \"max_tokens\" must be between 3 and 8192, not {card.MaxTokens}.");
         if (card.Dimensions is < 1 or > 65536)
             throw new InvalidDataException($"{path}: \"dimensions\" must be between 1 and 65536, not {card.Dimensions}.");
-        if (card.Layers is { } layers && (layers.Layers is not { Count: > 0 } || layers.Layers.Any(l => l < 1 || layers.SourceLayers > 0 && l > layers.SourceLayers)
+        if (card.Layers is { } layers && (layers.SourceLayers < 2 || layers.Layers is not { Count: > 0 } || layers.Layers.Any(l => l < 1 || l > layers.SourceLayers)
             || layers.Layers.Zip(layers.Layers.Skip(1)).Any(p => p.Second <= p.First) || card.Dimensions % layers.Layers.Count != 0))
-            throw new InvalidDataException($"{path}: \"layers\" must list ascending encoder layers of the source (1 to \"source_layers\") whose count divides \"dimensions\"; write the model again with 'taskphrase pool-layers'.");
+            throw new InvalidDataException($"{path}: the \"layers\" section must give \"source_layers\" (at least 2) and list ascending encoder layers from 1 to it, as many as divide \"dimensions\"; write the model again with 'taskphrase pool-layers'.");
         if (card.Quantization is not null && QuantizationGates.Check(card) is { } failure)
             throw new InvalidDataException($"{path}: the card marks an int8 model but {failure}. Quantise the fp32 model again with 'taskphrase quantize', or use the fp32 model.");
         return card;

@@ -26,7 +26,7 @@ internal static class PoolLayersCommand
         });
         var json = CommonOptions.Json();
         var command = new Command("pool-layers",
-            "Write a variant of a model whose embedding pools several encoder layers side by side (wider vectors, the same forward pass); for the learned task head with few phrases per task. Checks that the last layer's part still equals the source embedding.")
+            "Write a variant of a model whose embedding pools several encoder layers side by side (wider vectors, the same forward pass); for the learned task head with few phrases per task. When the last layer is chosen, checks that its part still equals the source embedding.")
         {
             model, output, layers, json,
         };

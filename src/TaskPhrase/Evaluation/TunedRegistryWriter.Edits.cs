@@ -139,7 +139,11 @@ public static partial class TunedRegistryWriter
         c.Add(at, at, block);
     }
 
-    /// <summary>Sets the <c>model</c> key (the model the thresholds were tuned for) to <see cref="TuningResult.ModelId"/>: in place, else after <c>version</c>, else first.</summary>
+    /// <summary>
+    /// Sets the <c>model</c> key (the model the thresholds were tuned for) to <see cref="TuningResult.ModelId"/>: the
+    /// value replaced in place, else the key added after <c>version</c> (block style) or first (flow style, or no
+    /// <c>version</c>).
+    /// </summary>
     private static void EditModel(EditContext c, YamlMappingNode root, TuningResult result)
     {
         if (result.ModelId is not { Length: > 0 } id) return;
@@ -147,9 +151,19 @@ public static partial class TunedRegistryWriter
         var value = Find(root, "model", out var key);
         if (key is not null)
         {
-            if (value is not YamlScalarNode scalar || scalar.Value == id) return;
-            if (IsNull(scalar)) c.Add(Index(key.Start), NodeEnd(c.Text, scalar), "model: " + text);
-            else c.Add(Index(scalar.Start), NodeEnd(c.Text, scalar), text);
+            if (value is not YamlScalarNode scalar)
+                throw c.Error(value!.Start, "'model' must be a model id (text, e.g. all-minilm-l6-v2); correct it and tune again.");
+            if (!IsNull(scalar) && scalar.Value == id) return;
+            // An empty value's end mark can lie on the next line (e.g. after a tag); never edit past the key's line.
+            int end = Math.Min(NodeEnd(c.Text, scalar), LineEnd(c.Text, Index(key.Start)));
+            if (IsNull(scalar)) c.Add(Index(key.Start), end, "model: " + text);
+            else c.Add(Index(scalar.Start), Math.Max(end, Index(scalar.Start)), text);
+            return;
+        }
+        if (root.Style == MappingStyle.Flow)
+        {
+            int open = Index(root.Start) + 1;
+            c.Add(open, open, $" model: {text},");
             return;
         }
         string indent = new(' ', Column(root.Children.First().Key));
@@ -161,15 +175,21 @@ public static partial class TunedRegistryWriter
         c.Add(at, at, line);
     }
 
-    /// <summary>A model id as a YAML scalar: plain when it is made of letters, digits and <c>. _ / -</c>, else double-quoted.</summary>
+    /// <summary>
+    /// A model id as a YAML scalar: plain when it is made of letters, digits and <c>. _ / -</c>, starts with a letter or
+    /// digit and is not a null word (<c>null</c>, <c>Null</c>, <c>NULL</c>); else double-quoted, with line separators and
+    /// control characters escaped.
+    /// </summary>
     private static string ModelText(string id)
     {
-        if (id.All(ch => char.IsAsciiLetterOrDigit(ch) || ch is '.' or '_' or '/' or '-') && char.IsAsciiLetterOrDigit(id[0])) return id;
+        if (id.All(ch => char.IsAsciiLetterOrDigit(ch) || ch is '.' or '_' or '/' or '-') && char.IsAsciiLetterOrDigit(id[0])
+            && id is not ("null" or "Null" or "NULL"))
+            return id;
         var sb = new StringBuilder("\"");
         foreach (char ch in id)
         {
             if (ch is '"' or '\\') sb.Append('\\').Append(ch);
-            else if (char.IsControl(ch)) sb.Append($"\\u{(int)ch:x4}");
+            else if (char.IsControl(ch) || ch is '\u2028' or '\u2029' or '\u0085') sb.Append($"\\u{(int)ch:x4}");
             else sb.Append(ch);
         }
         return sb.Append('"').ToString();
@@ -291,7 +311,7 @@ public static partial class TunedRegistryWriter
     {
         var root = Parse(output, source + " (tuned copy)");
         string Problem(string what) => $"Internal error: the tuned copy of {source} {what}. Please report this with the registry file.";
-        if (result.ModelId is { Length: > 0 } tunedWith && (Find(root, "model", out _) as YamlScalarNode)?.Value != tunedWith)
+        if (result.ModelId is { Length: > 0 } tunedWith && (Find(root, "model", out _) is not YamlScalarNode written || IsNull(written) || written.Value != tunedWith))
             throw new InvalidOperationException(Problem($"does not name the model '{tunedWith}' it was tuned with"));
         if (Find(root, "defaults", out _) is not YamlMappingNode defaults
             || (Find(defaults, "accept", out _) as YamlScalarNode)?.Value != FormatNumber(result.Accept)

@@ -305,6 +305,58 @@ public class TuningRegistryWriterTests
     public void Write_ModelId_NeedingQuotes_RoundTrips(string id)
         => Assert.Equal(id, Scalar(Load(Write(Harbor, Result(0.68f, 0.03f) with { ModelId = id })), "model"));
 
+    [Theory]
+    [InlineData("model: null\n")]
+    [InlineData("model: ~\n")]
+    [InlineData("model:\n")]
+    [InlineData("model: !!null\n")]
+    [InlineData("model: \"all-minilm-l6-v2\"   # quoted\n")]
+    public void Write_ModelId_ReplacesAnyFormOfTheOldValue(string line)
+    {
+        string yaml = Harbor.Replace("model: all-minilm-l6-v2\n", line, StringComparison.Ordinal);
+        var output = Load(Write(yaml, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" }));
+        Assert.Equal("all-minilm-l6-v2-int8", Scalar(output, "model"));
+        Assert.Equal("0.68", Scalar(output, "defaults", "accept"));
+    }
+
+    [Fact]
+    public void Write_ModelId_CrlfFile_KeepsItsLineEnds()
+    {
+        string text = Write(Harbor.Replace("\n", "\r\n", StringComparison.Ordinal).Replace("model: all-minilm-l6-v2\r\n", "", StringComparison.Ordinal),
+            Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" });
+        Assert.Contains("version: 1\r\nmodel: all-minilm-l6-v2-int8\r\n", text, StringComparison.Ordinal);
+        Assert.DoesNotContain("\n", text.Replace("\r\n", "", StringComparison.Ordinal), StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Write_ModelId_FlowStyleRoot_GetsTheKey()
+    {
+        const string flow = "{version: 1, defaults: {accept: 0.6, margin: 0.04}, tasks: [{id: hall-light, title: Hall light, controller: {manifold: reach-press.v1, latent_dims: 1}, phrases: [turn on the hall light]}]}\n";
+        var output = Load(Write(flow, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" }));
+        Assert.Equal("all-minilm-l6-v2-int8", Scalar(output, "model"));
+        Assert.Equal("0.68", Scalar(output, "defaults", "accept"));
+    }
+
+    [Theory]
+    [InlineData("null")]           // a plain null word would read back as no model at all
+    [InlineData("NULL")]
+    [InlineData("line\u2028break")] // a YAML line break inside a plain or quoted scalar
+    public void Write_ModelId_ThatYamlWouldMisread_IsQuotedAndReadsBack(string id)
+    {
+        string text = Write(Harbor, Result(0.68f, 0.03f) with { ModelId = id });
+        Assert.Equal(id, Scalar(Load(text), "model"));
+        Assert.Contains("model: \"", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Write_ModelId_MappingAsModelValue_SaysWhereAndWhat()
+    {
+        string yaml = Harbor.Replace("model: all-minilm-l6-v2\n", "model: {id: x}\n", StringComparison.Ordinal);
+        var e = Assert.Throws<FormatException>(() => Write(yaml, Result(0.68f, 0.03f) with { ModelId = "all-minilm-l6-v2-int8" }));
+        Assert.Contains("harbor-street.yaml:3:", e.Message, StringComparison.Ordinal);
+        Assert.Contains("'model' must be a model id", e.Message, StringComparison.Ordinal);
+    }
+
     [Fact]
     public void Write_NoModelId_LeavesTheModelKey()
         => Assert.Equal("all-minilm-l6-v2", Scalar(Load(Write(Harbor, Result(0.68f, 0.03f))), "model"));

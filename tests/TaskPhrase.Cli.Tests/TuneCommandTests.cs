@@ -2,7 +2,10 @@ using System.Text.Json;
 
 namespace TaskPhrase.Cli.Tests;
 
-/// <summary><c>tune</c> with the joint scoring search: restriction, infeasible budgets, the written scoring key.</summary>
+/// <summary>
+/// <c>tune</c> with the joint scoring search: restriction, infeasible budgets, the written scoring key; budgets read by
+/// their confidence bounds (<c>tune --conservative</c>, <c>audit --conservative</c>).
+/// </summary>
 [Collection(CliCollection.Name)]
 public class TuneCommandTests(CliFixture cli)
 {
@@ -88,5 +91,71 @@ public class TuneCommandTests(CliFixture cli)
         var (exit, _, error) = cli.Run("tune", "--registry", Registry, "--probes", Probes, "--coverage", "0.9", "--strategies", "head", "--output", "/dev/null");
         Assert.Equal(2, exit);
         Assert.Contains("--strategies applies to budget tuning", error);
+    }
+
+    [Fact]
+    public void Tune_Conservative_MeetsTheBudgetsByTheirUpperBoundsAndSaysSo()
+    {
+        // probes.csv holds 126 out-of-scope and 127 in-scope probes. Read by the upper end of the 95 % Wilson interval
+        // (Wilson 1927), a 5 % budget then allows at most one of each (1/126 → 4.4 %, 2/126 → 5.6 %), where point
+        // rates would allow six false accepts.
+        string tuned = Path.Combine(Path.GetTempPath(), $"tp-{Guid.NewGuid():N}.yaml");
+        try
+        {
+            var (exit, output, error) = cli.Run("tune", "--registry", Registry, "--probes", Probes, "--max-false-accept", "0.05", "--max-wrong-task", "0.05",
+                "--strategies", "centroid", "--conservative", "--output", tuned, "--json");
+            Assert.True(exit == 0, error);
+            using var doc = JsonDocument.Parse(output);
+            Assert.True(doc.RootElement.GetProperty("conservative").GetBoolean());
+            var fa = doc.RootElement.GetProperty("false_accept_rate");
+            var wrong = doc.RootElement.GetProperty("wrong_task_rate");
+            Assert.Equal(126, fa.GetProperty("total").GetInt32());
+            Assert.True(fa.GetProperty("ci_high").GetDouble() <= 0.05, output);
+            Assert.True(wrong.GetProperty("ci_high").GetDouble() <= 0.05, output);
+            Assert.InRange(fa.GetProperty("count").GetInt32(), 0, 1);
+            Assert.Contains("judged by the upper end of its 95 % Wilson interval", File.ReadAllText(tuned));
+
+            var (pointExit, point, _) = cli.Run("tune", "--registry", Registry, "--probes", Probes, "--max-false-accept", "0.05", "--max-wrong-task", "0.05",
+                "--strategies", "centroid", "--output", tuned, "--json");
+            Assert.Equal(0, pointExit);
+            using var p = JsonDocument.Parse(point);
+            Assert.False(p.RootElement.GetProperty("conservative").GetBoolean());
+            Assert.True(p.RootElement.GetProperty("false_accept_rate").GetProperty("value").GetDouble() <= 0.05);
+            Assert.DoesNotContain("Wilson interval)", File.ReadAllText(tuned));
+        }
+        finally { File.Delete(tuned); }
+    }
+
+    [Fact]
+    public void Tune_ConservativeWithCoverage_IsAUsageError()
+    {
+        var (exit, _, error) = cli.Run("tune", "--registry", Registry, "--probes", Probes, "--coverage", "0.9", "--conservative", "--output", "/dev/null");
+        Assert.Equal(2, exit);
+        Assert.Contains("--conservative applies to budget tuning", error);
+    }
+
+    [Fact]
+    public void Audit_Conservative_JudgesTheBudgetByTheUpperBound()
+    {
+        // With the built-in thresholds probes.csv gets 7 of 126 false accepts: 5.6 %, upper 95 % Wilson bound 10.9 %.
+        var (pointExit, _, pointError) = cli.Run("audit", "--registry", Registry, "--probes", Probes, "--max-false-accept", "0.08");
+        Assert.True(pointExit == 0, pointError);
+        var (exit, output, _) = cli.Run("audit", "--registry", Registry, "--probes", Probes, "--max-false-accept", "0.08", "--conservative");
+        Assert.Equal(1, exit);
+        Assert.Contains("the upper 95 % bound of false_accept_rate", output);
+        var (jsonExit, json, _) = cli.Run("audit", "--registry", Registry, "--probes", Probes, "--max-false-accept", "0.08", "--conservative", "--json");
+        Assert.Equal(1, jsonExit);
+        using var doc = JsonDocument.Parse(json);
+        var budget = doc.RootElement.GetProperty("budget");
+        Assert.True(budget.GetProperty("use_confidence_bound").GetBoolean());
+        Assert.False(budget.GetProperty("passed").GetBoolean());
+    }
+
+    [Fact]
+    public void Audit_ConservativeWithoutABudget_IsAUsageError()
+    {
+        var (exit, _, error) = cli.Run("audit", "--registry", Registry, "--probes", Probes, "--conservative");
+        Assert.Equal(2, exit);
+        Assert.Contains("--conservative judges budgets", error);
     }
 }

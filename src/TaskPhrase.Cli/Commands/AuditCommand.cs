@@ -23,12 +23,22 @@ internal static class AuditCommand
         var maxFalseAccept = RateOption("--max-false-accept", "Fail (exit 1) when the false-accept rate is above R (0..1).");
         var maxWrongTask = RateOption("--max-wrong-task", "Fail (exit 1) when the wrong-task rate is above R (0..1).");
         var minAccuracy = RateOption("--min-accuracy", "Fail (exit 1) when in-scope accuracy is below R (0..1).");
+        var conservative = new Option<bool>("--conservative")
+        {
+            Description = "Judge the budgets by the conservative end of each 95 % Wilson interval (upper for the maxima, lower for --min-accuracy), so a small suite cannot pass by luck.",
+        };
         var command = new Command("audit", "Run a probe suite and report accuracy, false accepts and wrong-task rates with 95 % Wilson intervals.")
         {
-            registry, index, probes, json, html, model, maxFalseAccept, maxWrongTask, minAccuracy,
+            registry, index, probes, json, html, model, maxFalseAccept, maxWrongTask, minAccuracy, conservative,
         };
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
+            var budget = new AuditBudget(parse.GetValue(maxFalseAccept), parse.GetValue(maxWrongTask), parse.GetValue(minAccuracy))
+            {
+                UseConfidenceBound = parse.GetValue(conservative),
+            };
+            if (budget.UseConfidenceBound && budget.IsEmpty)
+                throw new CliException("audit: --conservative judges budgets; give at least one of --max-false-accept, --max-wrong-task or --min-accuracy.");
             using var lease = context.BatchModel(parse.GetValue(model));
             var resolver = ResolverFactory.Create(parse.GetValue(registry), parse.GetValue(index), lease);
             ResolverFactory.WarnIfTunedForAnotherModel(context, resolver);
@@ -36,7 +46,6 @@ internal static class AuditCommand
             var suite = ProbeRunner.LoadSuite(probesPath, resolver.Registry);
             var resolutions = ProbeRunner.ResolveAll(context, resolver, suite.Cases);
             var report = AuditEvaluator.Evaluate(suite.Cases, resolutions, AuditContext.Create(resolver.Registry, resolver.Model, suite, DateTimeOffset.UtcNow));
-            var budget = new AuditBudget(parse.GetValue(maxFalseAccept), parse.GetValue(maxWrongTask), parse.GetValue(minAccuracy));
             var violations = report.CheckBudgets(budget);
             // What a stricter wrong-task budget would cost on this suite (thresholds re-chosen per cap, false accepts kept
             // at the rate the registry's current thresholds give).

@@ -29,11 +29,15 @@ internal static class TuneCommand
         {
             Description = "Budget mode: scoring strategies to search, comma-separated (" + string.Join(", ", ScoringCandidate.StrategyNames) + "); default all.",
         };
+        var conservative = new Option<bool>("--conservative")
+        {
+            Description = "Budget mode: judge each rate by the upper end of its 95 % Wilson interval, so the budgets hold only where the suite is large enough to show it.",
+        };
         var json = CommonOptions.Json();
         var model = CommonOptions.Model();
         var command = new Command("tune", "Choose thresholds from a probe suite under false-accept / wrong-task budgets or a coverage target.")
         {
-            registry, probes, output, maxFalseAccept, maxWrongTask, coverage, strategies, json, model,
+            registry, probes, output, maxFalseAccept, maxWrongTask, coverage, strategies, conservative, json, model,
         };
         command.SetAction(parse => CliRunner.Run(context, parse, () =>
         {
@@ -45,6 +49,9 @@ internal static class TuneCommand
             string? strategyList = parse.GetValue(strategies);
             if (cover is not null && strategyList is not null)
                 throw new CliException("tune: --strategies applies to budget tuning (--max-false-accept); coverage tuning keeps the registry's scoring.");
+            bool bound = parse.GetValue(conservative);
+            if (cover is not null && bound)
+                throw new CliException("tune: --conservative applies to budget tuning (--max-false-accept); coverage tuning already carries the split-conformal guarantee.");
             IReadOnlyList<ScoringCandidate>? candidates = null;
             if (cover is null)
             {
@@ -72,7 +79,7 @@ internal static class TuneCommand
             }
             else
             {
-                search = ScoringSearch.Run(loaded, lease.Embedder, suite.Cases, new TuningBudgets(far!.Value, wrong), candidates!,
+                search = ScoringSearch.Run(loaded, lease.Embedder, suite.Cases, new TuningBudgets(far!.Value, wrong) { UseConfidenceBound = bound }, candidates!,
                     progress: p => ReportProgress(context, p));
                 result = search.Result;
             }
@@ -152,6 +159,7 @@ internal static class TuneCommand
         writer.WriteStartObject();
         writer.WriteBoolean("feasible", result.Feasible);
         writer.WriteString("mode", result.Mode.ToString().ToLowerInvariant());
+        writer.WriteBoolean("conservative", result.Budgets?.UseConfidenceBound ?? false);
         WriteScoring(writer, "scoring", result.Scoring);
         writer.WriteNumber("accept", Math.Round(result.Accept, 6));
         writer.WriteNumber("margin", Math.Round(result.Margin, 6));

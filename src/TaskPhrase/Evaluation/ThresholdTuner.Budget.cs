@@ -66,6 +66,7 @@ public sealed partial class ThresholdTuner
         }
 
         var notes = new List<string>();
+        if (budgets.UseConfidenceBound) AddBoundNotes(notes, budgets, prepared, faAllowed, wrongAllowed);
         var globalRule = new DecisionRule(best.Accept, best.Margin);
         var rule = globalRule;
         if (Options.AllowOverrides && best.Feasible)
@@ -88,8 +89,11 @@ public sealed partial class ThresholdTuner
         }
         else if (!best.Feasible)
         {
-            notes.Add("No setting meets the budgets; the result is the setting with the smallest budget violation. " +
-                "Check the suite for out-of-scope probes that are approved phrases (exact matches are always accepted).");
+            notes.Add(budgets.UseConfidenceBound
+                ? "No setting meets the budgets read by their upper 95 % bounds; the result is the setting with the smallest violation of them. " +
+                  "A larger suite narrows the bounds (see the note above)."
+                : "No setting meets the budgets; the result is the setting with the smallest budget violation. " +
+                  "Check the suite for out-of-scope probes that are approved phrases (exact matches are always accepted).");
         }
 
         var metrics = TuningMetrics.Evaluate(probes, rule);
@@ -116,6 +120,29 @@ public sealed partial class ThresholdTuner
             Notes = notes.AsReadOnly(),
             ProbeCount = probes.Count,
         };
+    }
+
+    /// <summary>What reading the budgets by their upper 95 % bounds allows on this suite, and what it would take when it allows nothing.</summary>
+    private static void AddBoundNotes(List<string> notes, TuningBudgets budgets, Prepared prepared, int faAllowed, int wrongAllowed)
+    {
+        var inv = System.Globalization.CultureInfo.InvariantCulture;
+        void Kind(string what, string probes, double budget, int allowed, int total)
+        {
+            if (allowed >= 0)
+            {
+                notes.Add(string.Create(inv,
+                    $"Conservative budgets: at most {allowed} {what} of {total} {probes} probes keep the upper 95 % Wilson bound within {budget:0.###}."));
+                return;
+            }
+            double upper = Statistics.WilsonInterval(0, total).High;
+            string need = budgets.ProbesNeededFor(budget) is { } n
+                ? string.Create(inv, $"the suite needs at least {n} {probes} probes for this budget")
+                : "a budget of 0 cannot be shown by any suite";
+            notes.Add(string.Create(inv,
+                $"Conservative budgets: with {total} {probes} probes even 0 {what} has an upper 95 % Wilson bound of {upper:0.###}, above the budget {budget:0.###}; {need}, or tune on point rates."));
+        }
+        Kind("false accepts", "out-of-scope", budgets.MaxFalseAccept, faAllowed, prepared.OutOfScope);
+        if (budgets.MaxWrongTask is { } cap) Kind("wrong-task accepts", "in-scope", cap, wrongAllowed, prepared.InScope);
     }
 
     /// <summary>

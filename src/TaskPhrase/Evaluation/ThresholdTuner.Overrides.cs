@@ -144,6 +144,9 @@ public sealed partial class ThresholdTuner
         int oosNear = nearestDescending.Count(l => l.Kind == LiveKind.OutOfScope);
         int inNear = nearestDescending.Count - oosNear;
         float lowest = global.Accept - Options.MaxOverrideShift, highest = global.Accept + Options.MaxOverrideShift;
+        // The per-task check reads point rates: a handful of probes near one task cannot show a confidence bound, and
+        // the suite-wide allowance (which does follow UseConfidenceBound) already caps what the overrides may use.
+        var local = budgets.UseConfidenceBound ? budgets with { UseConfidenceBound = false } : budgets;
 
         var options = new List<OverrideOption>();
         int passingAtGlobal = nearestDescending.Count(l => l.Score >= global.Accept);
@@ -159,7 +162,7 @@ public sealed partial class ThresholdTuner
             float cutLo = Math.Max(lo, MathF.BitDecrement(lowest)), cutHi = Math.Min(hi, highest);
             if (!(cutLo < cutHi)) continue;
             var (c, w, f) = Count(nearestDescending, passing, global.Margin);
-            if (!budgets.AllowsFalseAccepts(f, oosNear) || !budgets.AllowsWrongTask(w, inNear)) continue;
+            if (!local.AllowsFalseAccepts(f, oosNear) || !local.AllowsWrongTask(w, inNear)) continue;
             options.Add(new OverrideOption(Between(cutLo, cutHi), true, c, w, f));
         }
         return options.ToArray();

@@ -90,7 +90,8 @@ public static partial class TunedRegistryWriter
         if (result.Mode == TuningMode.Budget && result.Budgets is { } b)
         {
             string wrong = b.MaxWrongTask is { } w ? w.ToString(inv) : "not capped";
-            sb.AppendLine(string.Create(inv, $"Mode: budgets, false-accept rate <= {b.MaxFalseAccept}, wrong-task rate <= {wrong}; best in-scope accuracy within them."));
+            string judged = b.UseConfidenceBound ? " (each rate judged by the upper end of its 95 % Wilson interval)" : "";
+            sb.AppendLine(string.Create(inv, $"Mode: budgets, false-accept rate <= {b.MaxFalseAccept}, wrong-task rate <= {wrong}{judged}; best in-scope accuracy within them."));
         }
         else
         {

@@ -23,24 +23,59 @@ public sealed record TuningBudgets
     /// <summary>Largest allowed wrong-task rate, or null when not capped.</summary>
     public double? MaxWrongTask { get; }
 
-    /// <summary>True when <paramref name="falseAccepts"/> of <paramref name="outOfScope"/> is within the false-accept budget (0 of 0 is).</summary>
-    public bool AllowsFalseAccepts(int falseAccepts, int outOfScope)
-        => outOfScope == 0 ? falseAccepts == 0 : (double)falseAccepts / outOfScope <= MaxFalseAccept;
-
-    /// <summary>True when <paramref name="wrongTask"/> of <paramref name="inScope"/> is within the wrong-task budget (always when uncapped).</summary>
-    public bool AllowsWrongTask(int wrongTask, int inScope)
-        => MaxWrongTask is not { } cap || (inScope == 0 ? wrongTask == 0 : (double)wrongTask / inScope <= cap);
+    /// <summary>
+    /// When true a rate is judged by the upper end of its 95 % Wilson score interval instead of its point value, so that
+    /// a budget holds only when the suite is large enough to show it: with 50 out-of-scope probes and a 10 % budget no
+    /// false accept is allowed (one of 50 has an upper bound of 10.5 %), with 150 up to 7. Default false. The same
+    /// reading as <see cref="AuditBudget.UseConfidenceBound"/>.
+    /// </summary>
+    public bool UseConfidenceBound { get; init; }
 
     /// <summary>
-    /// How far the rates exceed the budgets: the sum of (rate − budget) over the budgets that are exceeded; 0 when both hold.
+    /// True when <paramref name="falseAccepts"/> of <paramref name="outOfScope"/> is within the false-accept budget (0 of 0 is;
+    /// see <see cref="UseConfidenceBound"/>).
+    /// </summary>
+    public bool AllowsFalseAccepts(int falseAccepts, int outOfScope)
+        => outOfScope == 0 ? falseAccepts == 0 : Judged(falseAccepts, outOfScope) <= MaxFalseAccept;
+
+    /// <summary>
+    /// True when <paramref name="wrongTask"/> of <paramref name="inScope"/> is within the wrong-task budget (always when
+    /// uncapped; see <see cref="UseConfidenceBound"/>).
+    /// </summary>
+    public bool AllowsWrongTask(int wrongTask, int inScope)
+        => MaxWrongTask is not { } cap || (inScope == 0 ? wrongTask == 0 : Judged(wrongTask, inScope) <= cap);
+
+    /// <summary>
+    /// How far the rates exceed the budgets: the sum of (rate − budget) over the budgets that are exceeded, each rate
+    /// read as <see cref="UseConfidenceBound"/> says; 0 when both hold.
     /// </summary>
     public double Violation(int falseAccepts, int outOfScope, int wrongTask, int inScope)
     {
         double v = 0;
-        if (outOfScope > 0) v += Math.Max(0, (double)falseAccepts / outOfScope - MaxFalseAccept);
-        if (MaxWrongTask is { } cap && inScope > 0) v += Math.Max(0, (double)wrongTask / inScope - cap);
+        if (outOfScope > 0) v += Math.Max(0, Judged(falseAccepts, outOfScope) - MaxFalseAccept);
+        if (MaxWrongTask is { } cap && inScope > 0) v += Math.Max(0, Judged(wrongTask, inScope) - cap);
         return v;
     }
+
+    /// <summary>
+    /// With <see cref="UseConfidenceBound"/>: the fewest probes of one kind for which even a count of zero has an upper
+    /// 95 % bound within <paramref name="budget"/> (z² (1 − b) / b, rounded up; the Wilson bound of 0 of n is z² / (n + z²));
+    /// null for a budget of 0, which no suite can show. Without it, 1.
+    /// </summary>
+    public int? ProbesNeededFor(double budget)
+    {
+        if (!UseConfidenceBound) return 1;
+        if (budget >= 1) return 1;
+        if (budget <= 0) return null;
+        double z2 = Statistics.Z95 * Statistics.Z95;
+        int n = (int)Math.Ceiling(z2 * (1 - budget) / budget);
+        while (n > 1 && Statistics.WilsonInterval(0, n - 1).High <= budget) n--;
+        while (Statistics.WilsonInterval(0, n).High > budget) n++;
+        return n;
+    }
+
+    private double Judged(int count, int total)
+        => UseConfidenceBound ? Statistics.WilsonInterval(count, total).High : (double)count / total;
 
     private static void Check(double value, string parameter, string what)
     {

@@ -12,7 +12,10 @@ internal static class TuningOracle
 {
     public sealed record Choice(DecisionRule Rule, TuningMetrics Metrics, bool Feasible, double Violation);
 
-    public static Choice Best(IReadOnlyList<ScoredProbe> probes, TuningBudgets budgets, IReadOnlyList<float> grid, bool includeGaps = true)
+    // upper: when given, each rate is read as this upper confidence bound of (count, total) instead of count / total
+    // (for budgets with TuningBudgets.UseConfidenceBound).
+    public static Choice Best(IReadOnlyList<ScoredProbe> probes, TuningBudgets budgets, IReadOnlyList<float> grid, bool includeGaps = true,
+        Func<int, int, double>? upper = null)
     {
         var accepts = probes.Select(p => p.BestScore).Append(2f).Distinct().ToList();
         float maxMargin = grid.Max();
@@ -29,7 +32,7 @@ internal static class TuningOracle
                 var metrics = TuningMetrics.Evaluate(probes, rule);
                 int fa = metrics.FalseAcceptRate.Count, wt = metrics.WrongTaskRate.Count;
                 // Budgets checked here from the definitions, not through TuningBudgets' helpers.
-                double faRate = (double)fa / metrics.OutOfScope, wtRate = (double)wt / metrics.InScope;
+                double faRate = Read(fa, metrics.OutOfScope), wtRate = Read(wt, metrics.InScope);
                 bool feasible = faRate <= budgets.MaxFalseAccept && (budgets.MaxWrongTask is not { } cap || wtRate <= cap);
                 double violation = Math.Max(0, faRate - budgets.MaxFalseAccept) + (budgets.MaxWrongTask is { } c ? Math.Max(0, wtRate - c) : 0);
                 var choice = new Choice(rule, metrics, feasible, feasible ? 0 : violation);
@@ -37,6 +40,8 @@ internal static class TuningOracle
             }
         }
         return best!;
+
+        double Read(int count, int total) => upper is null ? (double)count / total : upper(count, total);
     }
 
     private static bool Better(Choice a, Choice b)

@@ -144,8 +144,9 @@ public sealed partial class ThresholdTuner
         int oosNear = nearestDescending.Count(l => l.Kind == LiveKind.OutOfScope);
         int inNear = nearestDescending.Count - oosNear;
         float lowest = global.Accept - Options.MaxOverrideShift, highest = global.Accept + Options.MaxOverrideShift;
-        // The per-task check reads point rates: a handful of probes near one task cannot show a confidence bound, and
-        // the suite-wide allowance (which does follow UseConfidenceBound) already caps what the overrides may use.
+        // Per-task checks read point rates, except that with UseConfidenceBound an override that accepts more than the
+        // global threshold must show its false-accept rate by the bound on the out-of-scope probes nearest the task:
+        // where none are near, lowering looks free on the suite, and that is where held-out false accepts come from.
         var local = budgets.UseConfidenceBound ? budgets with { UseConfidenceBound = false } : budgets;
 
         var options = new List<OverrideOption>();
@@ -162,7 +163,8 @@ public sealed partial class ThresholdTuner
             float cutLo = Math.Max(lo, MathF.BitDecrement(lowest)), cutHi = Math.Min(hi, highest);
             if (!(cutLo < cutHi)) continue;
             var (c, w, f) = Count(nearestDescending, passing, global.Margin);
-            if (!local.AllowsFalseAccepts(f, oosNear) || !local.AllowsWrongTask(w, inNear)) continue;
+            var faCheck = passing > passingAtGlobal ? budgets : local;
+            if (!faCheck.AllowsFalseAccepts(f, oosNear) || !local.AllowsWrongTask(w, inNear)) continue;
             options.Add(new OverrideOption(Between(cutLo, cutHi), true, c, w, f));
         }
         return options.ToArray();

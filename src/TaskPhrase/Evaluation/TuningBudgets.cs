@@ -27,7 +27,10 @@ public sealed record TuningBudgets
     /// When true a rate is judged by the upper end of its 95 % Wilson score interval instead of its point value, so that
     /// a budget holds only when the suite is large enough to show it: with 50 out-of-scope probes and a 10 % budget no
     /// false accept is allowed (one of 50 has an upper bound of 10.5 %), with 150 up to 7. Default false. The same
-    /// reading as <see cref="AuditBudget.UseConfidenceBound"/>.
+    /// reading as <see cref="AuditBudget.UseConfidenceBound"/>. <see cref="ThresholdTuner"/> applies it to the suite-wide
+    /// rates, and to the out-of-scope probes nearest a task before that task's accept threshold may be lowered by a
+    /// per-task override (so lowering needs <see cref="ProbesNeededFor"/> such probes near the task); its other per-task
+    /// checks read point rates.
     /// </summary>
     public bool UseConfidenceBound { get; init; }
 

@@ -119,24 +119,50 @@ public class TuningConservativeBudgetTests
         Assert.True(new ThresholdTuner().TuneForBudgets(probes, new TuningBudgets(0.10)).Feasible);
     }
 
-    [Fact]
-    public void TuneForBudgets_Conservative_PerTaskChecksStayOnPointRates()
+    // hall-light: 12 in-scope probes at 0.70..0.81 with 3 out-of-scope neighbours at 0.65; keys-hook: 12 at 0.50..0.61
+    // with `keysNeighbours` out-of-scope neighbours at 0.45. The global threshold must sit above 0.65: (0.65, 0.70],
+    // written 0.68. Lowering keys-hook to (0.45, 0.50], written 0.48, accepts 0 of its neighbours.
+    private static List<ScoredProbe> TwoTasks(int keysNeighbours)
     {
-        // hall-light: 12 in-scope probes at 0.70..0.81 with 3 out-of-scope neighbours at 0.65; keys-hook: 12 at
-        // 0.50..0.61 with 3 neighbours at 0.45. Six out-of-scope probes and a 0.40 budget read by its bound allow no
-        // false accept suite-wide (0/6 → 0.39, 1/6 → 0.56), as a point budget of 0 does; keys-hook's override to
-        // (0.45, 0.50] keeps 0 of its 3 neighbours, which a bound could never show (0/3 → 0.56).
         var probes = new List<ScoredProbe>();
         for (int i = 0; i < 12; i++) probes.Add(InScope("hall-light", "hall-light", 0.70f + i * 0.01f));
         for (int i = 0; i < 12; i++) probes.Add(InScope("keys-hook", "keys-hook", 0.50f + i * 0.01f));
         for (int i = 0; i < 3; i++) probes.Add(OutOfScope("hall-light", 0.65f));
-        for (int i = 0; i < 3; i++) probes.Add(OutOfScope("keys-hook", 0.45f));
-        Assert.True(WilsonUpper(0, 6) <= 0.40 && WilsonUpper(1, 6) > 0.40 && WilsonUpper(0, 3) > 0.40);
-        var result = new ThresholdTuner(new TuningOptions { MaxOverrideShift = 0.25f })
-            .TuneForBudgets(probes, new TuningBudgets(0.40) { UseConfidenceBound = true });
+        for (int i = 0; i < keysNeighbours; i++) probes.Add(OutOfScope("keys-hook", 0.45f));
+        return probes;
+    }
+
+    [Fact]
+    public void TuneForBudgets_Conservative_LoweringATaskNeedsOutOfScopeEvidenceNearIt()
+    {
+        var tuner = new ThresholdTuner(new TuningOptions { MaxOverrideShift = 0.25f });
+        // Three neighbours: 0 of 3 has an upper bound of 0.56, which cannot show a 10 % budget, so no lowering; with
+        // point rates the same suite gets the override (0 of 3 is 0 %).
+        Assert.True(WilsonUpper(0, 3) > 0.10);
+        var few = TwoTasks(3);
+        Assert.Empty(tuner.TuneForBudgets(few, new TuningBudgets(0.40) { UseConfidenceBound = true }).AcceptOverrides);
+        Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, tuner.TuneForBudgets(few, new TuningBudgets(0)).AcceptOverrides);
+        // Forty neighbours: 0 of 40 → 0.088 and 0 of 43 suite-wide → 0.082 are within 10 % (1 of 43 → 0.12 is not).
+        Assert.True(WilsonUpper(0, 40) <= 0.10 && WilsonUpper(0, 43) <= 0.10 && WilsonUpper(1, 43) > 0.10);
+        var result = tuner.TuneForBudgets(TwoTasks(40), new TuningBudgets(0.10) { UseConfidenceBound = true });
         Assert.True(result.Feasible);
         Assert.Equal(0.68f, result.Accept);
         Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, result.AcceptOverrides);
         Assert.Equal(24, result.Metrics.InScopeAccuracy.Count);
+        Assert.Equal(0, result.Metrics.FalseAcceptRate.Count);
+    }
+
+    [Fact]
+    public void TuneForBudgets_Conservative_PerTaskWrongTaskCheckStaysOnPointRates()
+    {
+        // keys-hook's 12 in-scope probes cannot show a 5 % wrong-task bound (0 of 12 → 0.24), yet lowering it is allowed
+        // when its out-of-scope neighbours show the false-accept bound: the wrong-task bound is kept suite-wide only.
+        var probes = TwoTasks(40);
+        for (int i = 0; i < 60; i++) probes.Add(InScope("water-basil", "water-basil", 0.90f));
+        Assert.True(WilsonUpper(0, 12) > 0.05 && WilsonUpper(0, 84) <= 0.05);
+        var result = new ThresholdTuner(new TuningOptions { MaxOverrideShift = 0.25f })
+            .TuneForBudgets(probes, new TuningBudgets(0.10, 0.05) { UseConfidenceBound = true });
+        Assert.True(result.Feasible);
+        Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, result.AcceptOverrides);
     }
 }

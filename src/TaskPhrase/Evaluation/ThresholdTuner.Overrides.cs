@@ -163,7 +163,10 @@ public sealed partial class ThresholdTuner
             float cutLo = Math.Max(lo, MathF.BitDecrement(lowest)), cutHi = Math.Min(hi, highest);
             if (!(cutLo < cutHi)) continue;
             var (c, w, f) = Count(nearestDescending, passing, global.Margin);
-            var faCheck = passing > passingAtGlobal ? budgets : local;
+            bool lowers = passing > passingAtGlobal;
+            // (0 of 0 meets any budget, but shows nothing: with the bound, lowering needs out-of-scope probes near the task.)
+            if (lowers && budgets.UseConfidenceBound && oosNear == 0) continue;
+            var faCheck = lowers ? budgets : local;
             if (!faCheck.AllowsFalseAccepts(f, oosNear) || !local.AllowsWrongTask(w, inNear)) continue;
             options.Add(new OverrideOption(Between(cutLo, cutHi), true, c, w, f));
         }

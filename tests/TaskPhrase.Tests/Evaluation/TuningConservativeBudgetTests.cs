@@ -142,6 +142,15 @@ public class TuningConservativeBudgetTests
         var few = TwoTasks(3);
         Assert.Empty(tuner.TuneForBudgets(few, new TuningBudgets(0.40) { UseConfidenceBound = true }).AcceptOverrides);
         Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, tuner.TuneForBudgets(few, new TuningBudgets(0)).AcceptOverrides);
+        // No neighbour at all shows nothing either (0 of 0 meets any rate). 60 out-of-scope probes nearest a third task
+        // keep the suite-wide bound within 10 % (0 of 63 → 0.057); point rates lower keys-hook (to the shift's limit).
+        var none = TwoTasks(0);
+        for (int i = 0; i < 60; i++) none.Add(OutOfScope("water-basil", 0.30f));
+        Assert.True(WilsonUpper(0, 63) <= 0.10);
+        var noneBound = tuner.TuneForBudgets(none, new TuningBudgets(0.10) { UseConfidenceBound = true });
+        Assert.True(noneBound.Feasible);
+        Assert.Empty(noneBound.AcceptOverrides);
+        Assert.True(tuner.TuneForBudgets(none, new TuningBudgets(0)).AcceptOverrides["keys-hook"] < 0.50f);
         // Forty neighbours: 0 of 40 → 0.088 and 0 of 43 suite-wide → 0.082 are within 10 % (1 of 43 → 0.12 is not).
         Assert.True(WilsonUpper(0, 40) <= 0.10 && WilsonUpper(0, 43) <= 0.10 && WilsonUpper(1, 43) > 0.10);
         var result = tuner.TuneForBudgets(TwoTasks(40), new TuningBudgets(0.10) { UseConfidenceBound = true });

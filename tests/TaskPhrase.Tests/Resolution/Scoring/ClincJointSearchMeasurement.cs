@@ -28,7 +28,10 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// </list>
 /// <para><c>TASKPHRASE_CLINC_STRATEGIES</c> (comma-separated) restricts the grid as <c>tune --strategies</c> does;
 /// <c>TASKPHRASE_CLINC_FA</c> sets the false-accept budget on half A (default 0.10); <c>TASKPHRASE_CLINC_MODEL</c> names
-/// another model directory to embed with; <c>TASKPHRASE_CLINC_OVERRIDES=0</c> turns per-task accept overrides off (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model).</para>
+/// another model directory to embed with (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model);
+/// <c>TASKPHRASE_CLINC_OVERRIDES=0</c> turns per-task accept overrides off; <c>TASKPHRASE_CLINC_CONSERVATIVE=1</c> reads
+/// both budgets by their upper 95 % Wilson bounds (<c>tune --conservative</c>); <c>TASKPHRASE_CLINC_SWAP=1</c> runs the
+/// second fold (search on half B, audit on half A; the printed "A" and "B" columns then mean tuning and audit half).</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -38,7 +41,8 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         var a = new List<ProbeCase>();
         var b = new List<ProbeCase>();
         foreach (var (text, expect, half) in ClincEmbeddings.ValidationHalves()) (half == 0 ? a : b).Add(new ProbeCase(text, expect));
-        return (a, b);
+        // The second fold of the two-fold protocol: tune on half B, audit on half A.
+        return Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_SWAP") == "1" ? (b, a) : (a, b);
     }
 
     internal static string Rate(RateEstimate r) => string.Create(CultureInfo.InvariantCulture,
@@ -51,7 +55,7 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         var ks = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "10").Split(',').Select(s => int.Parse(s, CultureInfo.InvariantCulture));
         var (halfA, halfB) = Halves();
         double falseAcceptBudget = double.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_FA") ?? "0.10", CultureInfo.InvariantCulture);
-        var budgets = new TuningBudgets(falseAcceptBudget, 0.05);
+        var budgets = new TuningBudgets(falseAcceptBudget, 0.05) { UseConfidenceBound = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_CONSERVATIVE") == "1" };
         var table = new StringBuilder();
         string? logPath = Environment.GetEnvironmentVariable("TASKPHRASE_MEASURE_LOG");
         bool allB = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_ALL_B") == "1";
@@ -71,7 +75,8 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         foreach (int k in ks)
         {
             var (registry, tuning) = Variant(variant, ClincRegistry.Build(k), halfA, other is null ? ClincEmbeddings.Generator(fixture) : embedder);
-            string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"));
+            string tag = (variant == "base" ? $"{k}" : $"{k} {variant}") + (falseAcceptBudget == 0.10 ? "" : string.Create(CultureInfo.InvariantCulture, $" FA≤{falseAcceptBudget:0.##}"))
+                + (budgets.UseConfidenceBound ? " conservative" : "") + (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_SWAP") == "1" ? " (B→A)" : "");
             Log($"k={tag}: {registry.Tasks.Sum(t => t.MustReject.Count)} look-alikes, tuning suite {tuning.Count} probes ({tuning.Count(p => !p.IsInScope)} out of scope)");
             var watch = Stopwatch.StartNew();
             var tuner = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_OVERRIDES") == "0" ? new ThresholdTuner(new TuningOptions { AllowOverrides = false }) : null;

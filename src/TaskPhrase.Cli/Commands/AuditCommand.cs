@@ -25,7 +25,7 @@ internal static class AuditCommand
         var minAccuracy = RateOption("--min-accuracy", "Fail (exit 1) when in-scope accuracy is below R (0..1).");
         var conservative = new Option<bool>("--conservative")
         {
-            Description = "Judge the budgets by the conservative end of each 95 % Wilson interval (upper for the maxima, lower for --min-accuracy), so a small suite cannot pass by luck.",
+            Description = "Judge the budgets by the conservative end of each 95 % Wilson interval (upper for the maxima, lower for --min-accuracy), so a small suite cannot pass by luck. The wrong-task trade-off lines stay on point rates.",
         };
         var command = new Command("audit", "Run a probe suite and report accuracy, false accepts and wrong-task rates with 95 % Wilson intervals.")
         {

@@ -51,7 +51,7 @@ internal static class TuneCommand
                 throw new CliException("tune: --strategies applies to budget tuning (--max-false-accept); coverage tuning keeps the registry's scoring.");
             bool bound = parse.GetValue(conservative);
             if (cover is not null && bound)
-                throw new CliException("tune: --conservative applies to budget tuning (--max-false-accept); coverage tuning already carries the split-conformal guarantee.");
+                throw new CliException("tune: --conservative reads the budgets of budget tuning by their confidence bounds; drop --conservative, or tune with --max-false-accept R [--max-wrong-task R] instead of --coverage.");
             IReadOnlyList<ScoringCandidate>? candidates = null;
             if (cover is null)
             {

@@ -19,7 +19,8 @@ public sealed partial class ThresholdTuner
         // Budgets as largest allowed counts, so the inner loop compares integers (same answers as the rate checks).
         int faAllowed = MaxAllowed(c => budgets.AllowsFalseAccepts(c, prepared.OutOfScope), prepared.OutOfScope);
         int wrongAllowed = MaxAllowed(c => budgets.AllowsWrongTask(c, prepared.InScope), prepared.InScope);
-        var capAllowed = caps.Select(cap => MaxAllowed(c => (double)c / prepared.InScope <= cap, prepared.InScope)).ToArray();
+        // Trade-off caps are read the way the budgets are (point rates, or upper 95 % bounds).
+        var capAllowed = caps.Select(cap => MaxAllowed(c => new TuningBudgets(1, cap) { UseConfidenceBound = budgets.UseConfidenceBound }.AllowsWrongTask(c, prepared.InScope), prepared.InScope)).ToArray();
         var live = prepared.Live;
         var groupEnd = prepared.GroupEnd;
         var accepts = prepared.AcceptCandidates;
@@ -89,11 +90,11 @@ public sealed partial class ThresholdTuner
         }
         else if (!best.Feasible)
         {
-            notes.Add(budgets.UseConfidenceBound
-                ? "No setting meets the budgets read by their upper 95 % bounds; the result is the setting with the smallest violation of them. " +
-                  "A larger suite narrows the bounds (see the note above)."
-                : "No setting meets the budgets; the result is the setting with the smallest budget violation. " +
-                  "Check the suite for out-of-scope probes that are approved phrases (exact matches are always accepted).");
+            notes.Add((budgets.UseConfidenceBound
+                    ? "No setting meets the budgets read by their upper 95 % bounds; the result is the setting with the smallest violation of them. " +
+                      "A larger suite narrows the bounds (see the note above). Also check"
+                    : "No setting meets the budgets; the result is the setting with the smallest budget violation. Check") +
+                " the suite for out-of-scope probes that are approved phrases (exact matches are always accepted).");
         }
 
         var metrics = TuningMetrics.Evaluate(probes, rule);
@@ -131,7 +132,7 @@ public sealed partial class ThresholdTuner
             if (allowed >= 0)
             {
                 notes.Add(string.Create(inv,
-                    $"Conservative budgets: at most {allowed} {what} of {total} {probes} probes keep the upper 95 % Wilson bound within {budget:0.###}."));
+                    $"Conservative budgets: at most {allowed} {what} of {total} {probes} probes keep the upper 95 % Wilson bound within {budget:0.######}."));
                 return;
             }
             double upper = Statistics.WilsonInterval(0, total).High;
@@ -139,7 +140,7 @@ public sealed partial class ThresholdTuner
                 ? string.Create(inv, $"the suite needs at least {n} {probes} probes for this budget")
                 : "a budget of 0 cannot be shown by any suite";
             notes.Add(string.Create(inv,
-                $"Conservative budgets: with {total} {probes} probes even 0 {what} has an upper 95 % Wilson bound of {upper:0.###}, above the budget {budget:0.###}; {need}, or tune on point rates."));
+                $"Conservative budgets: with {total} {probes} probes even 0 {what} has an upper 95 % Wilson bound of {upper:0.####}, above the budget {budget:0.######}; {need}, or tune on point rates."));
         }
         Kind("false accepts", "out-of-scope", budgets.MaxFalseAccept, faAllowed, prepared.OutOfScope);
         if (budgets.MaxWrongTask is { } cap) Kind("wrong-task accepts", "in-scope", cap, wrongAllowed, prepared.InScope);

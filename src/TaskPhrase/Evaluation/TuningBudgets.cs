@@ -63,7 +63,8 @@ public sealed record TuningBudgets
     /// <summary>
     /// With <see cref="UseConfidenceBound"/>: the fewest probes of one kind for which even a count of zero has an upper
     /// 95 % bound within <paramref name="budget"/> (z² (1 − b) / b, rounded up; the Wilson bound of 0 of n is z² / (n + z²));
-    /// null for a budget of 0, which no suite can show. Without it, 1.
+    /// null for a budget of 0, or one so small (below about 4e-9) that the suite would need more than a billion probes.
+    /// Without <see cref="UseConfidenceBound"/>, 1.
     /// </summary>
     public int? ProbesNeededFor(double budget)
     {
@@ -71,7 +72,9 @@ public sealed record TuningBudgets
         if (budget >= 1) return 1;
         if (budget <= 0) return null;
         double z2 = Statistics.Z95 * Statistics.Z95;
-        int n = (int)Math.Ceiling(z2 * (1 - budget) / budget);
+        double estimate = Math.Ceiling(z2 * (1 - budget) / budget);
+        if (estimate > 1e9) return null;
+        int n = (int)estimate;
         while (n > 1 && Statistics.WilsonInterval(0, n - 1).High <= budget) n--;
         while (Statistics.WilsonInterval(0, n).High > budget) n++;
         return n;

@@ -16,6 +16,7 @@ public class TuningConservativeBudgetTests
 
     private static double WilsonUpper(int k, int n)
     {
+        if (k == n) return 1; // the formula gives 1 up to rounding here
         double p = (double)k / n, z2 = Z * Z;
         return (p + z2 / (2 * n) + Z * Math.Sqrt(p * (1 - p) / n + z2 / (4.0 * n * n))) / (1 + z2 / n);
     }
@@ -62,9 +63,34 @@ public class TuningConservativeBudgetTests
         Assert.Equal(1, new TuningBudgets(budget).ProbesNeededFor(budget));
     }
 
+    [Theory]
+    [InlineData(0.0)]
+    [InlineData(1e-10)] // would need about 3.8e10 probes: more than any suite
+    public void ProbesNeededFor_ZeroOrTinyBudget_IsNull(double budget)
+        => Assert.Null(new TuningBudgets(budget) { UseConfidenceBound = true }.ProbesNeededFor(budget));
+
     [Fact]
-    public void ProbesNeededFor_ZeroBudget_IsNull()
-        => Assert.Null(new TuningBudgets(0) { UseConfidenceBound = true }.ProbesNeededFor(0));
+    public void TuneForBudgets_Conservative_TradeOffCapsAreReadByTheBoundToo()
+    {
+        // 1,600 in-scope probes: 1,400 correct at 0.90, then 100 score levels from 0.80 down, each holding one correct
+        // and one wrong-task probe, so every further level costs a wrong accept. A 5 % cap on point rates allows 80 wrong
+        // accepts (80 levels); read by its upper bound it allows 62 (62/1600 → 0.0494, 63/1600 → 0.0501).
+        var probes = new List<ScoredProbe>();
+        for (int i = 0; i < 1400; i++) probes.Add(InScope("hall-light", "hall-light", 0.90f));
+        for (int i = 0; i < 100; i++)
+        {
+            probes.Add(InScope("hall-light", "hall-light", 0.80f - i * 0.002f));
+            probes.Add(InScope("hall-light", "keys-hook", 0.80f - i * 0.002f));
+        }
+        for (int i = 0; i < 100; i++) probes.Add(OutOfScope("water-basil", 0.20f));
+        Assert.True(WilsonUpper(62, 1600) <= 0.05 && WilsonUpper(63, 1600) > 0.05);
+        var tuner = new ThresholdTuner(new TuningOptions { AllowOverrides = false });
+        var bound = tuner.TuneForBudgets(probes, new TuningBudgets(0.10) { UseConfidenceBound = true }).TradeOff.Single(t => t.MaxWrongTask == 0.05);
+        var point = tuner.TuneForBudgets(probes, new TuningBudgets(0.10)).TradeOff.Single(t => t.MaxWrongTask == 0.05);
+        Assert.True(bound.Feasible && point.Feasible);
+        Assert.Equal(62, (int)Math.Round(bound.WrongTaskRate * 1600));
+        Assert.Equal(80, (int)Math.Round(point.WrongTaskRate * 1600));
+    }
 
     [Fact]
     public void TuneForBudgets_Conservative_MatchesBruteForceOracle()
@@ -136,12 +162,15 @@ public class TuningConservativeBudgetTests
     public void TuneForBudgets_Conservative_LoweringATaskNeedsOutOfScopeEvidenceNearIt()
     {
         var tuner = new ThresholdTuner(new TuningOptions { MaxOverrideShift = 0.25f });
-        // Three neighbours: 0 of 3 has an upper bound of 0.56, which cannot show a 10 % budget, so no lowering; with
-        // point rates the same suite gets the override (0 of 3 is 0 %).
-        Assert.True(WilsonUpper(0, 3) > 0.10);
+        // Three neighbours: 0 of 3 has an upper bound of 0.56, which cannot show a 40 % budget, so no lowering (the six
+        // out-of-scope probes suite-wide allow 0: 0 of 6 → 0.39, 1 of 6 → 0.56); with point rates the same budget
+        // gives the override (0 of 3 is 0 %).
+        Assert.True(WilsonUpper(0, 3) > 0.40 && WilsonUpper(0, 6) <= 0.40 && WilsonUpper(1, 6) > 0.40);
         var few = TwoTasks(3);
-        Assert.Empty(tuner.TuneForBudgets(few, new TuningBudgets(0.40) { UseConfidenceBound = true }).AcceptOverrides);
-        Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, tuner.TuneForBudgets(few, new TuningBudgets(0)).AcceptOverrides);
+        var fewBound = tuner.TuneForBudgets(few, new TuningBudgets(0.40) { UseConfidenceBound = true });
+        Assert.True(fewBound.Feasible);
+        Assert.Empty(fewBound.AcceptOverrides);
+        Assert.Equal(new Dictionary<string, float> { ["keys-hook"] = 0.48f }, tuner.TuneForBudgets(few, new TuningBudgets(0.40)).AcceptOverrides);
         // No neighbour at all shows nothing either (0 of 0 meets any rate). 60 out-of-scope probes nearest a third task
         // keep the suite-wide bound within 10 % (0 of 63 → 0.057); point rates lower keys-hook (to the shift's limit).
         var none = TwoTasks(0);

@@ -22,16 +22,21 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 [Collection(ModelCollection.Name)]
 public class ClincOperatingPointMeasurement(ModelFixture fixture, ITestOutputHelper output)
 {
+    /// <summary>The model named by <c>TASKPHRASE_CLINC_MODEL</c>, or null for the fixture's bundled one.</summary>
+    private static OnnxEmbedder? OtherModel()
+        => Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_MODEL") is { Length: > 0 } dir ? OnnxEmbedder.Create(dir) : null;
+
+    private Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> Generator(OnnxEmbedder? other)
+        => other is null ? fixture.Embedder : new CachingEmbeddingGenerator(other);
+
     [MeasurementFact]
     [Trait("tier", "measure")]
     public void Measure_OperatingPoints()
     {
-        int k = int.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "100", CultureInfo.InvariantCulture);
         var (halfA, halfB) = ClincJointSearchMeasurement.Halves();
-        using var other = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_MODEL") is { Length: > 0 } dir ? OnnxEmbedder.Create(dir) : null;
-        Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> gen =
-            other is null ? fixture.Embedder : new CachingEmbeddingGenerator(other);
-        var registry = ClincRegistry.Build(k);
+        using var other = OtherModel();
+        var gen = Generator(other);
+        var registry = ClincRegistry.Build(int.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "100", CultureInfo.InvariantCulture));
         var budgets = new TuningBudgets(0.10, 0.05);
         var search = ScoringSearch.Run(registry, gen, halfA, budgets, ScoringCandidate.DefaultGrid(["head"]));
         output.WriteLine($"chosen {search.Chosen.Label}: accept {search.Result.Rule.Accept} margin {search.Result.Rule.Margin} overrides {search.Result.Rule.AcceptOverrides.Count}");
@@ -66,16 +71,15 @@ public class ClincOperatingPointMeasurement(ModelFixture fixture, ITestOutputHel
             output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{name} oos {p.BestScore:0.000} gap {p.BestScore - p.RunnerUpScore:0.000} → {p.BestTask}: {p.Probe.Utterance}"));
         output.WriteLine($"A oos guard-rejected {a.Count(p => !p.Probe.IsInScope && p.GuardRejected)}, B {b.Count(p => !p.Probe.IsInScope && p.GuardRejected)}");
     }
+
     [MeasurementFact]
     [Trait("tier", "measure")]
     public void Measure_DensitySignals()
     {
-        int k = int.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "100", CultureInfo.InvariantCulture);
         var (halfA, halfB) = ClincJointSearchMeasurement.Halves();
-        using var other = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_MODEL") is { Length: > 0 } dir ? OnnxEmbedder.Create(dir) : null;
-        Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> gen =
-            other is null ? fixture.Embedder : new CachingEmbeddingGenerator(other);
-        var registry = ClincRegistry.Build(k);
+        using var other = OtherModel();
+        var gen = Generator(other);
+        var registry = ClincRegistry.Build(int.Parse(Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_K") ?? "100", CultureInfo.InvariantCulture));
         var search = ScoringSearch.Run(registry, gen, halfA, new TuningBudgets(0.10, 0.05), ScoringCandidate.DefaultGrid(["head"]).Take(1).ToList());
         var resolver = TaskResolver.Create(search.Chosen.Apply(registry), gen);
         var phraseTexts = registry.Tasks.SelectMany(t => t.Phrases).ToList();

@@ -132,7 +132,7 @@ public sealed partial class ThresholdTuner
             if (allowed >= 0)
             {
                 notes.Add(string.Create(inv,
-                    $"Conservative budgets: at most {allowed} {what} of {total} {probes} probes keep the upper 95 % Wilson bound within {budget:0.######}."));
+                    $"Conservative budgets: at most {allowed} {(allowed == 1 ? what.TrimEnd('s') : what)} of {total} {probes} probes keep the upper 95 % Wilson bound within {budget:0.######}."));
                 return;
             }
             double upper = Statistics.WilsonInterval(0, total).High;

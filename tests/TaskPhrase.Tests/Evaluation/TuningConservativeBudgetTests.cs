@@ -131,6 +131,11 @@ public class TuningConservativeBudgetTests
         Assert.True(bound.Accept > point.Accept);
         Assert.True(bound.Feasible);
         Assert.Contains(bound.Notes, n => n.Contains("at most 7 false accepts of 150 out-of-scope probes"));
+        // One allowed reads in the singular (126 probes, 5 %: 1/126 → 0.044, 2/126 → 0.056).
+        var one = new List<ScoredProbe> { InScope("hall-light", "hall-light", 0.9f) };
+        for (int i = 0; i < 126; i++) one.Add(OutOfScope("keys-hook", 0.2f + i * 0.001f));
+        Assert.Contains(tuner.TuneForBudgets(one, new TuningBudgets(0.05) { UseConfidenceBound = true }).Notes,
+            n => n.Contains("at most 1 false accept of 126 out-of-scope probes"));
     }
 
     [Fact]

@@ -138,7 +138,7 @@ public sealed partial class ThresholdTuner
             double upper = Statistics.WilsonInterval(0, total).High;
             string need = budgets.ProbesNeededFor(budget) is { } n
                 ? string.Create(inv, $"the suite needs at least {n} {probes} probes for this budget")
-                : "a budget of 0 cannot be shown by any suite";
+                : budget <= 0 ? "a budget of 0 cannot be shown by any suite" : "no suite of practical size can show a budget this small";
             notes.Add(string.Create(inv,
                 $"Conservative budgets: with {total} {probes} probes even 0 {what} has an upper 95 % Wilson bound of {upper:0.####}, above the budget {budget:0.######}; {need}, or tune on point rates."));
         }

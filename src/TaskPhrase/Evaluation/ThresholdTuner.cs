@@ -39,6 +39,9 @@ public sealed partial class ThresholdTuner
     /// only added when it raises accuracy (a raise can free budget that lets another task be lowered). The
     /// combination is found exactly by dynamic programming over the remaining false-accept and wrong-task counts;
     /// when that table would be too large, no overrides are made and a note says so.</para>
+    /// <para>With <see cref="TuningBudgets.UseConfidenceBound"/> the budgets are read by the upper ends of the rates'
+    /// 95 % Wilson intervals, and notes say how many false accepts and wrong-task accepts that allows on this suite (or
+    /// how many probes the suite would need).</para>
     /// </remarks>
     /// <param name="probes">The scored probes; needs at least one in-scope and one out-of-scope probe.</param>
     /// <param name="budgets">The budgets to meet.</param>

@@ -31,7 +31,8 @@ namespace TaskPhrase.Tests.Resolution.Scoring;
 /// another model directory to embed with (e.g. one written by <c>taskphrase pool-layers</c>; default the bundled model);
 /// <c>TASKPHRASE_CLINC_OVERRIDES=0</c> turns per-task accept overrides off; <c>TASKPHRASE_CLINC_CONSERVATIVE=1</c> reads
 /// both budgets by their upper 95 % Wilson bounds (<c>tune --conservative</c>); <c>TASKPHRASE_CLINC_SWAP=1</c> runs the
-/// second fold (search on half B, audit on half A; the printed "A" and "B" columns then mean tuning and audit half).</para>
+/// second fold (search on half B, audit on half A; the printed "A" and "B" columns then mean tuning and audit half);
+/// <c>TASKPHRASE_CLINC_TEMPERATURES</c> (comma-separated) replaces the head's temperatures in the grid.</para>
 /// </summary>
 [Collection(ModelCollection.Name)]
 public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper output)
@@ -67,6 +68,15 @@ public class ClincJointSearchMeasurement(ModelFixture fixture, ITestOutputHelper
         var variants = (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_VARIANTS") ?? "base").Split(',', StringSplitOptions.TrimEntries | StringSplitOptions.RemoveEmptyEntries);
         string? strategies = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_STRATEGIES");
         var grid = ScoringCandidate.DefaultGrid(strategies is { Length: > 0 } ? strategies.Split(',') : null);
+        if (Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_TEMPERATURES") is { Length: > 0 } temps)
+        {
+            // The head settings at other temperatures than the default grid's (same L2 values and probability weights).
+            var ts = temps.Split(',').Select(t => double.Parse(t, CultureInfo.InvariantCulture)).ToList();
+            grid = grid.Where(c => c.Strategy != "head")
+                .Concat(from l2 in ScoringCandidate.DefaultL2 from t in ts from w in ScoringCandidate.DefaultProbabilityWeights
+                        select new ScoringCandidate("head", new TaskPhrase.Registry.ScoringParameters { L2 = l2, Temperature = t, ProbabilityWeight = w == 0.5 ? null : w }))
+                .ToList();
+        }
         using var other = Environment.GetEnvironmentVariable("TASKPHRASE_CLINC_MODEL") is { Length: > 0 } dir ? TaskPhrase.Onnx.OnnxEmbedder.Create(dir) : null;
         Microsoft.Extensions.AI.IEmbeddingGenerator<string, Microsoft.Extensions.AI.Embedding<float>> embedder =
             other is null ? fixture.Embedder : new TaskPhrase.Tests.TestDoubles.CachingEmbeddingGenerator(other);

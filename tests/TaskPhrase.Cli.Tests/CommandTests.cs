@@ -188,6 +188,32 @@ public class CommandTests(CliFixture cli)
         Assert.StartsWith("utterance,expect,kind,note", first);
     }
 
+    [Fact]
+    public void Probes_ReportsTheSmallestBudgetsTheSuiteCanShowByItsBounds()
+    {
+        string suite = Path.Combine(Path.GetTempPath(), $"tp-{Guid.NewGuid():N}.csv");
+        try
+        {
+            var (exit, output, error) = cli.Run("probes", "--registry", Registry, "--output", suite, "--count", "120", "--json");
+            Assert.True(exit == 0, error);
+            using var doc = System.Text.Json.JsonDocument.Parse(output);
+            var root = doc.RootElement;
+            // Counted from the written file, and the bound of 0 of n from Wilson's formula (Wilson 1927): z² / (n + z²).
+            var rows = TaskPhrase.Evaluation.ProbeSuite.Load(suite).Cases;
+            int outOfScope = rows.Count(r => !r.IsInScope), inScope = rows.Count - outOfScope;
+            Assert.True(outOfScope > 0 && inScope > 0);
+            Assert.Equal(outOfScope, root.GetProperty("out_of_scope").GetInt32());
+            Assert.Equal(inScope, root.GetProperty("in_scope").GetInt32());
+            const double z2 = 1.959964 * 1.959964;
+            Assert.Equal(z2 / (outOfScope + z2), root.GetProperty("smallest_conservative_false_accept_budget").GetDouble(), 6);
+            Assert.Equal(z2 / (inScope + z2), root.GetProperty("smallest_conservative_wrong_task_budget").GetDouble(), 6);
+            var (humanExit, human, _) = cli.Run("probes", "--registry", Registry, "--output", suite, "--count", "120");
+            Assert.Equal(0, humanExit);
+            Assert.Contains("the smallest budgets this suite can show", human);
+        }
+        finally { File.Delete(suite); }
+    }
+
     [Theory]
     [InlineData("audit", "--registry", "x.yaml", "--probes", "p.csv", "--max-false-accept", "2")]
     [InlineData("resolve", "--nonsense-option")]

@@ -38,6 +38,9 @@ internal static class ProbesCommand
                 ProbeSuite.Write(writer, rows);
             }
             var byKind = rows.GroupBy(r => r.Kind ?? "").OrderBy(g => g.Key, StringComparer.Ordinal).ToList();
+            // What the suite can show when tune or audit read budgets by their upper 95 % bounds (--conservative).
+            int inScope = rows.Count(r => r.IsInScope), outOfScope = rows.Count - inScope;
+            double faFloor = TuningBudgets.SmallestShowableBudget(outOfScope), wrongFloor = TuningBudgets.SmallestShowableBudget(inScope);
             if (parse.GetValue(json) && path != "-")
             {
                 using var w = new Utf8JsonWriter(CliRunner.StdoutStream(context));
@@ -45,6 +48,10 @@ internal static class ProbesCommand
                 w.WriteString("output", path);
                 w.WriteNumber("rows", rows.Count);
                 w.WriteNumber("seed", options.Seed);
+                w.WriteNumber("in_scope", inScope);
+                w.WriteNumber("out_of_scope", outOfScope);
+                w.WriteNumber("smallest_conservative_false_accept_budget", Math.Round(faFloor, 6));
+                w.WriteNumber("smallest_conservative_wrong_task_budget", Math.Round(wrongFloor, 6));
                 w.WriteStartObject("kinds");
                 foreach (var g in byKind) w.WriteNumber(g.Key, g.Count());
                 w.WriteEndObject();
@@ -55,6 +62,8 @@ internal static class ProbesCommand
             else if (path != "-")
             {
                 context.Out.WriteLine($"wrote {rows.Count} probes to {path} (seed {options.Seed}): {string.Join(", ", byKind.Select(g => $"{g.Key} {g.Count()}"))}");
+                context.Out.WriteLine(string.Create(System.Globalization.CultureInfo.InvariantCulture,
+                    $"{inScope} in scope, {outOfScope} out of scope: read by their upper 95 % bounds (--conservative), the smallest budgets this suite can show are {100 * faFloor:0.0} % false accepts and {100 * wrongFloor:0.0} % wrong task, and only with no such error at all."));
             }
             return ExitCodes.Success;
         }));

@@ -80,6 +80,14 @@ public sealed record TuningBudgets
         return n;
     }
 
+    /// <summary>
+    /// The smallest budget a suite with <paramref name="probes"/> probes of one kind can show by the upper end of the 95 %
+    /// Wilson interval, reached only when none of them errs: z² / (n + z²) (1 for an empty suite). For example 0.0989 for
+    /// 35 probes, 0.025 for 150.
+    /// </summary>
+    /// <exception cref="ArgumentOutOfRangeException"><paramref name="probes"/> is negative.</exception>
+    public static double SmallestShowableBudget(int probes) => Statistics.WilsonInterval(0, probes).High;
+
     private double Judged(int count, int total)
         => UseConfidenceBound ? Statistics.WilsonInterval(count, total).High : (double)count / total;
 

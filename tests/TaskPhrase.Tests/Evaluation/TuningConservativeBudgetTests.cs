@@ -64,6 +64,18 @@ public class TuningConservativeBudgetTests
     }
 
     [Theory]
+    // Newcombe (1998), "Two-sided confidence intervals for the single proportion", Stat. Med. 17, Table I: 0/20 → 0.1611.
+    [InlineData(20, 0.1611)]
+    [InlineData(35, 0.0989)]
+    [InlineData(150, 0.0250)]
+    public void SmallestShowableBudget_IsTheBoundOfZeroErrors(int n, double expected)
+    {
+        Assert.Equal(expected, TuningBudgets.SmallestShowableBudget(n), 4);
+        Assert.Equal(WilsonUpper(0, n), TuningBudgets.SmallestShowableBudget(n), 12);
+        Assert.Equal(1, TuningBudgets.SmallestShowableBudget(0));
+    }
+
+    [Theory]
     [InlineData(0.0)]
     [InlineData(1e-10)] // would need about 3.8e10 probes: more than any suite
     public void ProbesNeededFor_ZeroOrTinyBudget_IsNull(double budget)
